@@ -1,0 +1,213 @@
+"""The automatic initial guess: an estimate of every unknown from plant reasoning.
+
+1. The total evaporation follows from the feed and the target solids
+   (E = F (1 - x_F / x_P)), and is split evenly between the effects.
+2. The temperature span between the live steam and the coldest effect (set
+   by its fixed pressure, or the cooling water plus 15 K, or 50 °C) is split
+   evenly by the effects' position in the vapour cascade: an effect whose
+   vapour heats k further effects boils k steps above the coldest one.
+3. Each unit then estimates its outlets from its inlets (its ``guess``
+   method), in flow order from the sources, in three passes so that recycles
+   settle. Fixed values and the user's guesses are never overwritten.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+
+from balance.flowsheet.graph import Flowsheet
+from balance.properties import water
+from balance.unitops.streams import STREAM_KINDS
+
+DEFAULT_STEAM_TEMPERATURE = 393.15
+DEFAULT_COLD_TEMPERATURE = 323.15
+PASSES = 3
+
+
+def _unit_order(fs: Flowsheet) -> list[str]:
+    sources = [n for n, u in fs.units.items() if u.boundary == "source"]
+    order, seen = [], set()
+    frontier = list(sources)
+    while frontier:
+        nxt = []
+        for name in frontier:
+            if name in seen:
+                continue
+            seen.add(name)
+            order.append(name)
+            nxt.extend(v for _, v in fs.graph.out_edges(name))
+        frontier = nxt
+    order.extend(n for n in fs.units if n not in seen)
+    return order
+
+
+def cascade_levels(fs: Flowsheet) -> dict[str, int]:
+    """For each boiling unit, 1 + the number of boiling units its vapour heats in turn."""
+    memo: dict[str, int] = {}
+
+    def downstream(unit_name: str, visiting: frozenset) -> int:
+        best = 0
+        for _, target, data in fs.graph.out_edges(unit_name, data=True):
+            if data["kind"] != "vapour":
+                continue
+            best = max(best, through(target, data["target_port"], visiting))
+        return best
+
+    def through(name: str, port: str, visiting: frozenset) -> int:
+        unit = fs.unit(name)
+        if name in visiting:
+            return 0
+        if getattr(unit, "boils", False) and port == "heating_in":
+            return level(name, visiting)
+        if getattr(unit, "passes_vapour", False) or unit.type_name in ("mixer", "splitter"):
+            return downstream(name, visiting | {name})
+        return 0
+
+    def level(name: str, visiting: frozenset = frozenset()) -> int:
+        if name not in memo:
+            memo[name] = 1 + downstream(name, visiting | {name})
+        return memo[name]
+
+    return {n: level(n) for n, u in fs.units.items() if getattr(u, "boils", False)}
+
+
+def initial_guess(model) -> dict[str, float]:
+    """Estimate every variable of a compiled model; returns path -> value."""
+    fs = model.flowsheet
+    values: dict[str, float] = {}
+    locked: set[str] = set()
+    for v in model.variables:
+        if v.fixed is not None:
+            values[v.path] = v.fixed
+            locked.add(v.path)
+        elif v.guess is not None:
+            values[v.path] = v.guess
+            locked.add(v.path)
+
+    streams = fs.streams
+    feeds = [s for s in streams if fs.unit(s.source).type_name == "feed"]
+    x_feed = np.mean([values.get(f"{s.name}.solids", 0.1) for s in feeds]) if feeds else 0.1
+    products = [s for s in streams if s.kind == "liquor" and fs.unit(s.target).boundary == "sink"]
+    fixed_solids = [values[f"{s.name}.solids"] for s in products if f"{s.name}.solids" in locked]
+    x_product = max(fixed_solids) if fixed_solids else min(max(3 * x_feed, x_feed + 0.05), 0.6)
+    x_product = max(x_product, x_feed + 1e-3)
+    effects = [n for n, u in fs.units.items() if getattr(u, "boils", False) and
+               any(p.name == "heating_in" for p in u.ports())]
+    n_effects = max(len(effects), 1)
+
+    feed_flow = sum(values.get(f"{s.name}.flow", np.nan) for s in feeds) if feeds else np.nan
+    if not np.isfinite(feed_flow):
+        product_flows = [values[f"{s.name}.flow"] for s in products if f"{s.name}.flow" in locked]
+        steam = [values[f"{s.name}.flow"] for s in streams
+                 if fs.unit(s.source).type_name == "steam_supply" and f"{s.name}.flow" in locked]
+        if product_flows:
+            feed_flow = sum(product_flows) * x_product / max(x_feed, 1e-6)
+        elif steam:
+            feed_flow = sum(steam) * 0.85 * n_effects / max(1 - x_feed / x_product, 1e-3)
+        else:
+            feed_flow = model.reference_flow
+        for s in feeds:
+            if f"{s.name}.flow" not in locked:
+                values[f"{s.name}.flow"] = feed_flow / len(feeds)
+    evaporation = feed_flow * (1 - x_feed / x_product)
+
+    # temperatures along the cascade
+    t_top = None
+    for s in streams:
+        if fs.unit(s.source).type_name == "steam_supply":
+            if f"{s.name}.temperature" in locked:
+                t = values[f"{s.name}.temperature"]
+            elif f"{s.name}.pressure" in locked:
+                t = float(water.saturation_temperature(values[f"{s.name}.pressure"]))
+            else:
+                continue
+            t_top = max(t_top or 0.0, t)
+    levels = cascade_levels(fs)
+    n_levels = max(levels.values(), default=1)
+    t_cold = None
+    for name, lvl in levels.items():
+        path = f"{name}.pressure"
+        if lvl == 1 and path in locked:
+            t_cold = float(water.saturation_temperature(values[path]))
+    if t_cold is None:
+        cw = [values[f"{s.name}.temperature"] for s in streams
+              if fs.unit(s.source).type_name == "cooling_water" and f"{s.name}.temperature" in locked]
+        t_cold = (max(cw) + 15.0) if cw else DEFAULT_COLD_TEMPERATURE
+    if t_top is None:
+        t_top = max(DEFAULT_STEAM_TEMPERATURE, t_cold + 10.0 * n_levels)
+    step = (t_top - t_cold) / max(n_levels, 1)
+    hints_by_unit: dict[str, dict[str, Any]] = {}
+    for name, unit in fs.units.items():
+        hints: dict[str, Any] = {"fixed": {}, "steam_flow": evaporation / n_effects / 0.95,
+                                 "site_pressure": fs.site["pressure"]}
+        for q in unit.quantities():
+            path = f"{name}.{q.name}"
+            if path in locked:
+                hints["fixed"][q.name] = values[path]
+        if name in levels:
+            t_b = t_cold + (levels[name] - 1) * step
+            if "pressure" in hints["fixed"]:
+                t_b = float(water.saturation_temperature(hints["fixed"]["pressure"]))
+            hints["boiling_temperature"] = t_b
+        if name in effects:
+            hints["evaporation"] = evaporation / n_effects
+        hints_by_unit[name] = hints
+
+    def stream_defaults(kind_name: str) -> dict[str, float]:
+        out = {}
+        for sv in STREAM_KINDS[kind_name].variables:
+            out[sv.name] = {"flow": feed_flow, "solids": x_feed, "temperature": 0.5 * (t_top + t_cold),
+                            "pressure": float(water.saturation_pressure(0.5 * (t_top + t_cold))),
+                            }.get(sv.name, sv.nominal)
+        return out
+
+    current: dict[str, dict[str, float]] = {}
+    for s in streams:
+        state = stream_defaults(s.kind)
+        for var in state:
+            path = f"{s.name}.{var}"
+            if path in values:
+                state[var] = values[path]
+        current[s.name] = state
+
+    def put(path: str, value: float) -> None:
+        if path not in locked and value is not None and np.isfinite(value):
+            values[path] = float(value)
+
+    order = _unit_order(fs)
+    for _ in range(PASSES):
+        for name in order:
+            unit = fs.unit(name)
+            inlets = {s.target_port: current[s.name] for s in streams if s.target == name}
+            try:
+                guess = unit.guess(inlets, hints_by_unit[name])
+            except (KeyError, ZeroDivisionError, ValueError, TypeError):
+                continue
+            for port, var_values in guess.streams.items():
+                stream = fs.stream_at(name, port)
+                if stream is None:
+                    continue
+                for var, val in var_values.items():
+                    path = f"{stream.name}.{var}"
+                    put(path, val)
+                    if var in current[stream.name]:
+                        current[stream.name][var] = values.get(path, val)
+            for q, val in guess.quantities.items():
+                put(f"{name}.{q}", val)
+            for port, var_values in guess.inlets.items():
+                stream = fs.stream_at(name, port)
+                if stream is None or fs.unit(stream.source).boundary != "source":
+                    continue
+                for var, val in var_values.items():
+                    path = f"{stream.name}.{var}"
+                    put(path, val)
+                    current[stream.name][var] = values.get(path, val)
+    for s in streams:
+        for var, val in current[s.name].items():
+            values.setdefault(f"{s.name}.{var}", val)
+    for v in model.variables:
+        if v.path not in values:
+            values[v.path] = v.nominal
+    return values

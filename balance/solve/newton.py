@@ -1,0 +1,148 @@
+"""Solving g(x, p) = 0: damped Newton first, IPOPT with bounds when Newton fails.
+
+Unknowns are scaled by their magnitude in the initial guess and residuals
+by the kind of balance they express (mass, energy, temperature, ...), so
+one tolerance serves every equation. Newton's step comes from one CasADi
+call that evaluates the residual and the sparse Jacobian and solves the
+linear system; a backtracking line search on the residual norm keeps the
+iterates within the variables' physical bounds.
+
+A solver's own success flag is never trusted: `NewtonSolver.solve` reports
+the residual it measured itself, and the result checks run afterwards.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, field
+
+import casadi as ca
+import numpy as np
+
+TOLERANCE = 1e-9
+MAX_ITERATIONS = 60
+
+
+@dataclass
+class RawSolution:
+    """What a numerical method returns, before the result checks."""
+
+    x: np.ndarray
+    converged: bool
+    method: str
+    iterations: int
+    residual_norm: float
+    seconds: float
+    message: str = ""
+    history: list[float] = field(default_factory=list)
+
+
+class CompiledSystem:
+    """CasADi functions of one model in scaled variables.
+
+    ``residual(xs, p, dx, dr)`` returns the scaled residual; ``step(...)``
+    returns the scaled residual and the Newton step. ``dx`` and ``dr`` are
+    the variable and residual scales, passed as inputs so that one compiled
+    function serves every solve of the same model.
+    """
+
+    def __init__(self, model):
+        self.model = model
+        g = model.g
+        if hasattr(ca, "cse") and g.numel():
+            g = ca.cse(g)
+        self.g_function = ca.Function("g", [model.x, model.p], [g])
+        n, m = model.n_unknowns, model.p.numel()
+        xs = ca.MX.sym("xs", n)
+        p = ca.MX.sym("p", m)
+        dx = ca.MX.sym("dx", n)
+        dr = ca.MX.sym("dr", model.n_equations)
+        gs = self.g_function(xs * dx, p) / dr
+        jac = ca.jacobian(gs, xs)
+        step = -ca.solve(jac, gs, "csparse")
+        self.residual = ca.Function("residual", [xs, p, dx, dr], [gs])
+        self.step = ca.Function("newton_step", [xs, p, dx, dr], [gs, step])
+        self.jacobian = ca.Function("jacobian", [xs, p, dx, dr], [jac])
+        self._xs, self._p, self._dx, self._dr, self._gs = xs, p, dx, dr, gs
+        self._ipopt = None
+        self.lower = np.array([v.lower for v in model.unknowns], dtype=float)
+        self.upper = np.array([v.upper for v in model.unknowns], dtype=float)
+
+    def scales(self, x0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        nominal = np.array([v.nominal for v in self.model.unknowns], dtype=float)
+        dx = np.maximum(np.abs(x0), 1e-3 * nominal)
+        dx = np.where(dx > 0, dx, 1.0)
+        return dx, np.asarray(self.model.residual_scale, dtype=float)
+
+    def ipopt(self):
+        if self._ipopt is None:
+            nlp = {"x": self._xs, "p": ca.vertcat(self._p, self._dx, self._dr), "f": 0, "g": self._gs}
+            opts = {"ipopt.print_level": 0, "print_time": False, "ipopt.sb": "yes",
+                    "ipopt.max_iter": 500, "ipopt.tol": 1e-10, "ipopt.constr_viol_tol": 1e-10}
+            self._ipopt = ca.nlpsol("feasibility", "ipopt", nlp, opts)
+        return self._ipopt
+
+
+def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float = TOLERANCE,
+           max_iter: int = MAX_ITERATIONS) -> RawSolution:
+    """Damped Newton with backtracking and projection onto the bounds."""
+    start = time.perf_counter()
+    dx, dr = system.scales(x0)
+    lo, hi = system.lower / dx, system.upper / dx
+    xs = np.clip(x0 / dx, lo, hi)
+    history = []
+    message = ""
+    for iteration in range(max_iter + 1):
+        gs, step = system.step(xs, p, dx, dr)
+        gs = np.asarray(gs, dtype=float).ravel()
+        step = np.asarray(step, dtype=float).ravel()
+        norm = float(np.max(np.abs(gs))) if gs.size else 0.0
+        history.append(norm)
+        if not np.isfinite(norm):
+            message = "the residual is not finite (a property was evaluated outside its domain)"
+            break
+        if norm < tol:
+            return RawSolution(xs * dx, True, "newton", iteration, norm, time.perf_counter() - start,
+                               "converged", history)
+        if iteration == max_iter:
+            message = f"no convergence in {max_iter} iterations"
+            break
+        if not np.all(np.isfinite(step)):
+            message = "the Jacobian is singular at the current point"
+            break
+        merit = float(gs @ gs)
+        alpha = 1.0
+        accepted = False
+        while alpha > 1e-6:
+            trial = np.clip(xs + alpha * step, lo, hi)
+            g_trial = np.asarray(system.residual(trial, p, dx, dr), dtype=float).ravel()
+            m_trial = float(g_trial @ g_trial)
+            if np.isfinite(m_trial) and m_trial <= (1 - 1e-4 * alpha) * merit:
+                accepted = True
+                break
+            alpha *= 0.5
+        if not accepted:
+            message = "the line search found no step that reduces the residual"
+            break
+        xs = trial
+    return RawSolution(xs * dx, False, "newton", len(history) - 1, history[-1] if history else np.inf,
+                       time.perf_counter() - start, message, history)
+
+
+def bounded_feasibility(system: CompiledSystem, x0: np.ndarray, p: np.ndarray) -> RawSolution:
+    """Solve g = 0 as a feasibility problem in IPOPT, within the variables' bounds."""
+    start = time.perf_counter()
+    dx, dr = system.scales(x0)
+    lo, hi = system.lower / dx, system.upper / dx
+    solver = system.ipopt()
+    try:
+        sol = solver(x0=np.clip(x0 / dx, lo, hi), p=np.concatenate([p, dx, dr]), lbx=lo, ubx=hi, lbg=0, ubg=0)
+    except RuntimeError as exc:
+        return RawSolution(x0, False, "ipopt", 0, np.inf, time.perf_counter() - start, str(exc))
+    xs = np.asarray(sol["x"], dtype=float).ravel()
+    gs = np.asarray(system.residual(xs, p, dx, dr), dtype=float).ravel()
+    norm = float(np.max(np.abs(gs))) if gs.size else 0.0
+    stats = solver.stats()
+    return RawSolution(xs * dx, bool(np.isfinite(norm) and norm < 1e-7), "ipopt",
+                       int(stats.get("iter_count", 0)), norm, time.perf_counter() - start,
+                       str(stats.get("return_status", "")))
