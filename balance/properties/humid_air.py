@@ -76,6 +76,7 @@ __all__ = [
     "vapour_enthalpy_ideal_gas", "enthalpy", "enthalpy_ashrae",
     "specific_volume", "density",
     "dew_point_temperature", "adiabatic_saturation_temperature",
+    "humidity_ratio_from_adiabatic_saturation_temperature",
 ]
 
 #: Molar mass of dry air, [kg/mol] (ASHRAE Handbook—Fundamentals 2017, ch. 1,
@@ -440,8 +441,10 @@ def vapour_enthalpy_ideal_gas(T):
     capacity of water vapour rises from 1.86 to about 2.0 kJ/(kg K) between
     0 and 300 °C, which a constant c_p,v misses by up to 0.6 % of h_v at
     300 °C (tested). In moist air the vapour is at its partial pressure; the
-    real-gas residual there (IF97 region 2 at p_w) lowers h_v by under 0.1 %
-    at dryer-exhaust partial pressures. Region 2 is declared from 273.15 K;
+    real-gas residual there (IF97 region 2 at p_w) lowers h_v by 0.1-0.2 %
+    at dryer-exhaust partial pressures (20-30 kPa, 80-90 °C) and by 0.5 % at
+    101 kPa and 100 °C; ASHRAE's tables include it, ideal mixing does not.
+    Region 2 is declared from 273.15 K;
     the ideal-gas part is smooth and is used down to 233.15 K.
 
     References
@@ -843,3 +846,67 @@ def adiabatic_saturation_temperature(T, W, p):
                          f"{float(residual):.2e} in ln p) for T = {float(T):g} K, "
                          f"W = {float(W):g} kg/kg, p = {float(p):g} Pa", key="W")
     return T_star
+
+
+@valid_for(T=_T_RANGE, T_star=(273.15, 373.15, "K"), p=_P_RANGE)
+def humidity_ratio_from_adiabatic_saturation_temperature(T, T_star, p):
+    r"""Humidity ratio from dry-bulb and adiabatic-saturation temperatures, ASHRAE 2017 ch. 1 Eq. 33.
+
+    Eq. 33 solved for W, on the program's enthalpy datum (the SI form of
+    Eq. 35 with enthalpies from IAPWS-IF97 instead of constant heat
+    capacities):
+
+    .. math:: W = \frac{W_s(T^*)\,[h_v(T^*) - h_f(T^*)] - c_{p,a}(T - T^*)}
+                        {h_v(T) - h_f(T^*)}
+
+    Parameters
+    ----------
+    T : float or casadi.SX or casadi.MX
+        Dry-bulb temperature, [K].
+    T_star : float or casadi.SX or casadi.MX
+        Adiabatic-saturation (thermodynamic wet-bulb) temperature, [K].
+    p : float or casadi.SX or casadi.MX
+        Barometric pressure, [Pa].
+
+    Returns
+    -------
+    float or casadi expression
+        Humidity ratio, [kg water / kg dry air].
+
+    Raises
+    ------
+    InputError
+        For numbers, if T_star > T or the result is negative (T_star too
+        low for T: no such air exists).
+    OutOfRangeError
+        For numbers, if T_star is at or above the boiling point at p (from
+        `saturation_humidity_ratio`).
+
+    Notes
+    -----
+    The explicit inverse of `adiabatic_saturation_temperature`. Water at the
+    surface is liquid (supercooled below 0 °C).
+
+    References
+    ----------
+    ASHRAE Handbook—Fundamentals (2017), SI edition, ch. 1, Eqs. 33 and 35;
+    water enthalpies from IAPWS R7-97(2012).
+
+    Examples
+    --------
+    >>> round(humidity_ratio_from_adiabatic_saturation_temperature(313.15, 293.15, 101325.0), 5)
+    0.0064
+    """
+    symbolic = _is_symbolic(T, T_star, p)
+    if not symbolic and T_star > T:
+        raise InputError(f"adiabatic saturation temperature {float(T_star):g} K is above the "
+                         f"dry-bulb temperature {float(T):g} K", key="T_star")
+    h_f = water.liquid_enthalpy(T_star)
+    W_s = saturation_humidity_ratio(T_star, p)
+    W = ((W_s * (vapour_enthalpy_ideal_gas(T_star) - h_f) - CP_DRY_AIR * (T - T_star))
+         / (vapour_enthalpy_ideal_gas(T) - h_f))
+    if not symbolic and W < 0.0:
+        raise InputError(f"adiabatic saturation temperature {float(T_star):g} K is too low for "
+                         f"dry-bulb {float(T):g} K at p = {float(p):g} Pa: even dry air "
+                         "saturates at a higher one", key="T_star")
+    return W

@@ -1,0 +1,1 @@
+"""Analysis of solved flowsheets: key figures, comparisons, optimisation and capacity studies."""
