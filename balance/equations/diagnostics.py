@@ -29,20 +29,9 @@ def unit_degrees_of_freedom(model: Model) -> dict[str, tuple[int, int]]:
     return {n: (owned.get(n, 0), equations.get(n, 0)) for n in names}
 
 
-def _compile_loose(fs):
-    """Compile without the squareness check, to describe any imbalance."""
-    from balance.equations import model as model_module
-    original = model_module.check_square
-    model_module.check_square = lambda m: None
-    try:
-        return compile_flowsheet(fs)
-    finally:
-        model_module.check_square = original
-
-
 def check_report(fs) -> tuple[str, bool]:
     """Text for ``balance check`` and whether the flowsheet is ready to solve."""
-    model = _compile_loose(fs)
+    model = compile_flowsheet(fs, require_square=False)
     lines = [f"{fs.file or fs.title}: {len([u for u in fs.units if not u.startswith(IMPLICIT_OUTLET_PREFIX)])}"
              f" units, {len(fs.streams)} streams, {len(model.variables)} variables "
              f"({len(model.parameters)} fixed), {model.n_equations} equations"]

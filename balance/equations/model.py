@@ -174,8 +174,11 @@ class _UnitWriter:
         self._checks.append(check)
 
 
-def compile_flowsheet(fs: Flowsheet) -> Model:
+def compile_flowsheet(fs: Flowsheet, require_square: bool = True) -> Model:
     """Build the `Model` of a flowsheet: variables, equations, degrees of freedom.
+
+    With ``require_square=False`` a model with more unknowns than equations
+    is returned as it is (for optimisation, or to describe the imbalance).
 
     Raises
     ------
@@ -260,7 +263,8 @@ def compile_flowsheet(fs: Flowsheet) -> Model:
 
     reference = _reference_flow(fs, by_path)
     model = Model(fs, variables, equations, states, checks, reports, external, reference_flow=reference)
-    check_square(model)
+    if require_square:
+        check_square(model)
     return model
 
 
