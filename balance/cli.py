@@ -62,6 +62,20 @@ def cmd_check(args) -> int:
     return 0 if ok else 1
 
 
+def cmd_units(args) -> int:
+    from balance.unitops import UNIT_TYPES
+    from balance.unitops.describe import describe_unit_type
+    from balance.errors import InputError
+    names = args.types or sorted(UNIT_TYPES)
+    for name in names:
+        if name not in UNIT_TYPES:
+            raise InputError(f"unknown unit type {name!r}; valid types: {', '.join(sorted(UNIT_TYPES))}",
+                             key="type")
+        print(describe_unit_type(UNIT_TYPES[name]))
+        print()
+    return 0
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="balance",
@@ -91,6 +105,10 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("check", help="validate a flowsheet and count its degrees of freedom, without solving")
     common(p)
     p.set_defaults(func=cmd_check)
+
+    p = sub.add_parser("units", help="list unit types with their ports, quantities and settings")
+    p.add_argument("types", nargs="*", help="unit types to describe (default: all)")
+    p.set_defaults(func=cmd_units)
     return parser
 
 

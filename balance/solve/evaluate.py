@@ -44,4 +44,4 @@ class Evaluator:
 
     def evaluate(self, x: np.ndarray, p: np.ndarray) -> dict:
         out = np.asarray(self.function(x, p), dtype=float).ravel()
-        return dict(zip(self.keys, out))
+        return dict(zip(self.keys, out.tolist()))

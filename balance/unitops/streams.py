@@ -19,6 +19,7 @@ liquid water at the triple point (IAPWS).
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from typing import Any, Callable
 
@@ -157,12 +158,12 @@ class StreamState:
     def pressure(self):
         return self.values["pressure"]
 
-    @property
+    @functools.cached_property
     def specific_enthalpy(self):
-        """Specific enthalpy [J/kg] on the IAPWS datum."""
+        """Specific enthalpy [J/kg] on the IAPWS datum (built once per state)."""
         return self.kind.specific_enthalpy(self)
 
-    @property
+    @functools.cached_property
     def enthalpy_flow(self):
         """Enthalpy flow [W] on the IAPWS datum."""
         return self.flow * self.specific_enthalpy
