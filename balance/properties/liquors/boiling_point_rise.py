@@ -37,6 +37,8 @@ __all__ = [
     "geankoplis_sodium_hydroxide", "GEANKOPLIS_NAOH_LINES",
     "geankoplis_sucrose", "starzak_peacock_sucrose", "starzak_peacock_water_activity",
     "crapiste_lozano", "dairy_colligative",
+    "STARZAK_PEACOCK_Q", "STARZAK_PEACOCK_A", "STARZAK_PEACOCK_B",
+    "STARZAK_PEACOCK_NEWTON_STEPS", "SKIM_MILK_OSMOLALITY", "WHOLE_MILK_OSMOLALITY",
 ]
 
 #: Molar gas constant, [J/(mol K)] (CODATA 2018, exact).
@@ -208,7 +210,8 @@ def duhring(x, T_water, p, lines: Sequence[Sequence[float]]):
 
     References
     ----------
-    Dühring, U. (1878), Neue Grundgesetze zur rationellen Physik und Chemie;
+    Dühring, U. (1878), Neue Grundgesetze zur rationellen Physik und Chemie
+    [memory];
     the rule as used for evaporators: Geankoplis, C. J., Transport Processes
     and Separation Process Principles, 4th ed., Prentice Hall (2003),
     section 8.4.
@@ -343,7 +346,7 @@ def geankoplis_sodium_hydroxide(x, T_water, p):
     --------
     30 % NaOH where water boils at 65.6 °C (the point read off Fig. 8.4-2):
 
-    >>> round(geankoplis_sodium_hydroxide(0.30, 65.6 + 273.15, 25_900.0), 1)
+    >>> round(geankoplis_sodium_hydroxide(0.30, 65.6 + 273.15, 25_720.0), 1)
     13.9
     """
     return duhring(x, T_water, p, lines=GEANKOPLIS_NAOH_LINES)
@@ -437,7 +440,8 @@ def starzak_peacock_water_activity(x, T):
     ----------
     Starzak, M., Peacock, S. D., Water activity coefficient in aqueous
     solutions of sucrose - a comprehensive data analysis, Zuckerindustrie
-    122 (1997) 380-387 (parameters read; the form as recalled).
+    122 (1997) 380-387 (parameters read; the form and the title as
+    recalled).
 
     Examples
     --------
@@ -580,7 +584,8 @@ def crapiste_lozano(x, T_water, p, alpha, beta, gamma, delta, p_unit=1.0):
     ----------
     Crapiste, G. H., Lozano, J. E., Effect of concentration and pressure on
     the boiling point rise of apple juice and related sugar solutions,
-    Journal of Food Science 53 (1988) 865-868 [form from memory].
+    Journal of Food Science 53 (1988) 865-868 [citation and form from
+    memory].
 
     Examples
     --------

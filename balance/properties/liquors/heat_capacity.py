@@ -282,7 +282,8 @@ def choi_okos(x, T, composition: Mapping[str, float]):
     ----------
     Choi, Y., Okos, M. R., Effects of temperature and composition on the
     thermal properties of foods, in: Le Maguer, M., Jelen, P. (eds.), Food
-    Engineering and Process Applications, vol. 1, Elsevier (1986) 93-101;
+    Engineering and Process Applications, vol. 1, Elsevier (1986) 93-101
+    [editors and pages from memory];
     tabulated in ASHRAE Handbook - Refrigeration, thermal properties of
     foods.
 
