@@ -83,7 +83,7 @@ def _normalise_unit(text: str) -> str:
 
 
 def parse(value, kind: str, *, file: str | None = None, unit: str | None = None,
-          key: str | None = None) -> float:
+          key: str | None = None, bare_is_si: bool = False) -> float:
     """Convert a quantity as a user writes it to a float in SI units.
 
     Parameters
@@ -95,6 +95,9 @@ def parse(value, kind: str, *, file: str | None = None, unit: str | None = None,
         One of `KINDS`.
     file, unit, key : str, optional
         Where the value came from, for error messages.
+    bare_is_si : bool
+        Accept a bare number of any kind as SI (the Python API); files
+        always need a unit.
 
     Examples
     --------
@@ -119,7 +122,7 @@ def parse(value, kind: str, *, file: str | None = None, unit: str | None = None,
         number = float(value)
         if not math.isfinite(number):
             raise UnitOfMeasureError(f"value {value!r} is not a finite number", file=file, unit=unit, key=key)
-        if spec.bare_number_ok or number == 0.0 and kind not in ("temperature", "pressure"):
+        if bare_is_si or spec.bare_number_ok or number == 0.0 and kind not in ("temperature", "pressure"):
             return number
         raise UnitOfMeasureError(
             f"{value!r} has no unit; write it with one, for example '{spec.example}'",
@@ -133,6 +136,8 @@ def parse(value, kind: str, *, file: str | None = None, unit: str | None = None,
             f"cannot read {value!r} as a {kind.replace('_', ' ')}; write a number and a unit, "
             f"for example '{spec.example}'", file=file, unit=unit, key=key)
     number, unit_text = float(match.group(1)), _normalise_unit(match.group(2))
+    if unit_text.startswith("/"):
+        unit_text = "1 " + unit_text          # "40 / MWh": a price per unit, currency left implicit
     if not unit_text:
         return parse(number, kind, file=file, unit=unit, key=key)
     if kind == "temperature_difference":
@@ -167,7 +172,8 @@ def convert(value_si: float, kind: str, to_unit: str | None = None) -> float:
     spec = KINDS[kind]
     target = _normalise_unit(to_unit or spec.display)
     if kind == "temperature_difference":
-        return value_si if target in ("K", "delta_degC") else UREG.Quantity(value_si, "K").to(target).magnitude
+        target = {"degC": "delta_degC", "degF": "delta_degF"}.get(target, target)
+        return value_si if target in ("K", "delta_degC") else float(UREG.Quantity(value_si, "K").to(target).magnitude)
     if not spec.si and target in ("", "dimensionless"):
         return value_si
     return float(UREG.Quantity(value_si, spec.si or "dimensionless").to(target).magnitude)

@@ -192,14 +192,56 @@ def _kind_variable(kind_name, var, fs, path):
                          file=fs.file, key=path) from None
 
 
-def parse_path_value(fs: Flowsheet, path: str, value: Any) -> float:
-    """Parse a value given for a variable path into SI."""
+def parse_path_value(fs: Flowsheet, path: str, value: Any, bare_is_si: bool = False) -> float:
+    """Parse a value given for a variable path into SI.
+
+    A value outside the variable's physical bounds (`QuantitySpec` or stream
+    variable ``lower``/``upper``, such as solids above 100 %) is refused with
+    an `InputError` naming the file, unit and key.
+    """
     unit = path.split(".", 1)[0] if path.split(".", 1)[0] in fs.graph else None
-    return quantities.parse(value, kind_of_path(fs, path), file=fs.file, unit=unit, key=path)
+    kind = kind_of_path(fs, path)
+    number = quantities.parse(value, kind, file=fs.file, unit=unit, key=path, bare_is_si=bare_is_si)
+    bounds = _physical_bounds(fs, path)
+    if bounds is not None and not bounds[0] <= number <= bounds[1]:
+        shown = [f"{quantities.convert(b, kind):.6g}" for b in bounds]
+        limits = (f"{shown[0]} to {shown[1]}" if abs(bounds[1]) < 1e29 else f"at least {shown[0]}")
+        raise InputError(f"{value!r} is outside the physical range of this variable, {limits} "
+                         f"{quantities.display_unit(kind)}", file=fs.file, unit=unit, key=path)
+    return number
 
 
-def build_unit(fs: Flowsheet, name: str, table: dict) -> Any:
-    """Create one unit from its table and record what it fixes."""
+def _physical_bounds(fs: Flowsheet, path: str) -> tuple[float, float] | None:
+    """(lower, upper) in SI of the variable a path names, or None where unknown."""
+    owner, _, var = path.rpartition(".")
+    if owner in fs.graph:
+        unit = fs.unit(owner)
+        for q in unit.quantities():
+            if q.name == var:
+                return q.lower, q.upper
+        if var not in unit.aliases():
+            return None
+        port_name, var = unit.aliases()[var]
+        kind = unit.port_by_name(port_name).kind
+    else:
+        unit_name, _, port_name = owner.rpartition(".")
+        if unit_name in fs.graph:
+            kind = fs.unit(unit_name).port_by_name(port_name).kind
+        else:
+            kind = next((s.kind for s in fs.streams if s.name == owner), None)
+    stream_kind = STREAM_KINDS.get(kind)
+    if stream_kind is None or var not in stream_kind.variable_names:
+        return None
+    variable = stream_kind.variable(var)
+    return variable.lower, variable.upper
+
+
+def build_unit(fs: Flowsheet, name: str, table: dict, bare_is_si: bool = False) -> Any:
+    """Create one unit from its table and record what it fixes.
+
+    ``bare_is_si`` accepts bare numbers as SI values (the Python API); a
+    file's values always carry units.
+    """
     file = fs.file
     if "type" not in table:
         raise InputError("missing key 'type' (what the unit is)", file=file, unit=name, key="type")
@@ -211,15 +253,17 @@ def build_unit(fs: Flowsheet, name: str, table: dict) -> Any:
         if key in ("type", "label", "description"):
             continue
         if key in settings_spec:
-            settings[key] = _parse_setting(settings_spec[key], value, file, name)
+            settings[key] = _parse_setting(settings_spec[key], value, file, name, bare_is_si)
         else:
             rest[key] = value
+    if "site_pressure" in settings_spec and "site_pressure" not in settings:
+        settings["site_pressure"] = fs.site["pressure"]   # air units: the flowsheet's barometric pressure
     unit = cls(name, settings, file=file)
     fs.add_unit(unit)
     valid = [q.name for q in unit.quantities()] + list(unit.aliases())
     for key, value in rest.items():
         if key not in valid:
-            raise InputError(f"unknown key for a {cls.type_name}; valid keys: "
+            raise InputError(f"unknown key for a unit of type {cls.type_name!r}; valid keys: "
                              f"{', '.join(sorted(set(valid) | set(settings_spec)))}",
                              file=file, unit=name, key=key)
         path = f"{name}.{key}"
@@ -231,15 +275,15 @@ def build_unit(fs: Flowsheet, name: str, table: dict) -> Any:
                 raise InputError("a table value takes only 'guess', e.g. { guess = \"40 kPa\" }",
                                  file=file, unit=name, key=key)
             fs.free(path)
-            fs.guesses[path] = parse_path_value(fs, path, value["guess"])
+            fs.guesses[path] = parse_path_value(fs, path, value["guess"], bare_is_si)
         else:
-            fs.fix(path, parse_path_value(fs, path, value))
+            fs.fix(path, parse_path_value(fs, path, value, bare_is_si))
     return unit
 
 
-def _parse_setting(spec, value, file, unit_name):
+def _parse_setting(spec, value, file, unit_name, bare_is_si=False):
     if spec.kind in quantities.KINDS:
-        return quantities.parse(value, spec.kind, file=file, unit=unit_name, key=spec.name)
+        return quantities.parse(value, spec.kind, file=file, unit=unit_name, key=spec.name, bare_is_si=bare_is_si)
     if spec.kind == "integer":
         if not isinstance(value, int) or isinstance(value, bool):
             raise InputError(f"expected a whole number, got {value!r}", file=file, unit=unit_name, key=spec.name)

@@ -118,7 +118,7 @@ class Flowsheet:
         floats; see `balance.flowsheet.file_format.apply_unit_keys`.
         """
         from balance.flowsheet.file_format import build_unit  # same layer; avoids a cycle at import
-        return build_unit(self, name, dict(type=type_name, **keys))
+        return build_unit(self, name, dict(type=type_name, **keys), bare_is_si=True)
 
     def connect(self, source: str, target: str, name: str | None = None) -> str:
         """Join ``source`` ("unit.port", an outlet) to ``target`` (an inlet).
@@ -229,6 +229,10 @@ class Flowsheet:
         for name, unit in self.units.items():
             if unit.type_name == "feed":
                 liquor_name = unit.setting("liquor")
+                if liquor_name not in self.liquors:
+                    from balance.properties.liquors import BUILTIN_LIQUORS, builtin_liquor
+                    if liquor_name in BUILTIN_LIQUORS:
+                        self.liquors[liquor_name] = builtin_liquor(liquor_name)
                 if liquor_name not in self.liquors:
                     raise InputError(f"unknown liquor '{liquor_name}'; defined: "
                                      f"{', '.join(sorted(self.liquors)) or 'none'}",

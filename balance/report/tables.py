@@ -10,12 +10,12 @@ from balance.quantities import convert, display_unit
 from balance.report.cautions import cautions_for
 
 STREAM_COLUMNS = (("flow", "mass_flow"), ("solids", "fraction"), ("temperature", "temperature"),
-                  ("pressure", "pressure"))
+                  ("pressure", "pressure"), ("humidity", "humidity_ratio"))
 
 UNIT_COLUMNS = (("duty", "power"), ("area", "area"), ("U", "heat_transfer_coefficient"),
                 ("driving_force", "temperature_difference"), ("boiling_point_rise", "temperature_difference"),
                 ("pressure", "pressure"), ("boiling_temperature", "temperature"),
-                ("evaporation", "mass_flow"))
+                ("evaporation", "mass_flow"), ("lift", "temperature_difference"), ("electrical_power", "power"))
 
 
 def fmt(value: float | None, kind: str | None = None) -> str:

@@ -94,3 +94,21 @@ def worst_equations(model, figures: dict, count: int = 5) -> list[tuple[str, flo
     scaled = np.array([figures[("residual", i)] for i in range(model.n_equations)]) / model.residual_scale
     order = np.argsort(-np.nan_to_num(np.abs(scaled), nan=np.inf))[:count]
     return [(model.equations[i].label, float(scaled[i])) for i in order if not abs(scaled[i]) < 1e-12]
+
+
+def unit_problems(model, figures: dict) -> list[str]:
+    """Problems that units find in their own numbers (``solution_problems(values)``, optional).
+
+    A unit's hook receives its quantities and reported figures by name (SI)
+    and returns messages naming the file, unit and key, e.g. a dryer whose
+    product moisture lies below the equilibrium moisture of its exhaust air.
+    """
+    out = []
+    for name, unit in model.flowsheet.units.items():
+        hook = getattr(unit, "solution_problems", None)
+        if hook is None:
+            continue
+        values = {q.name: figures[("var", f"{name}.{q.name}")] for q in unit.quantities()}
+        values.update({k: figures[("unit", name, k)] for k in model.reports.get(name, {})})
+        out += hook(values)
+    return out

@@ -17,6 +17,7 @@ from typing import Any
 
 import numpy as np
 
+from balance.errors import SpecificationError
 from balance.flowsheet.graph import Flowsheet
 from balance.properties import water
 from balance.unitops.streams import STREAM_KINDS
@@ -89,7 +90,9 @@ def initial_guess(model) -> dict[str, float]:
     streams = fs.streams
     feeds = [s for s in streams if fs.unit(s.source).type_name == "feed"]
     x_feed = np.mean([values.get(f"{s.name}.solids", 0.1) for s in feeds]) if feeds else 0.1
-    products = [s for s in streams if s.kind == "liquor" and fs.unit(s.target).boundary == "sink"]
+    products = [s for s in streams if s.kind == "liquor" and (
+        fs.unit(s.target).boundary == "sink"     # or a concentrate fed to a dryer from an evaporator
+        or getattr(fs.unit(s.target), "dries", False) and fs.unit(s.source).boundary != "source")]
     fixed_solids = [values[f"{s.name}.solids"] for s in products if f"{s.name}.solids" in locked]
     x_product = max(fixed_solids) if fixed_solids else min(max(3 * x_feed, x_feed + 0.05), 0.6)
     x_product = max(x_product, x_feed + 1e-3)
@@ -117,6 +120,16 @@ def initial_guess(model) -> dict[str, float]:
     t_top = None
     for s in streams:
         if fs.unit(s.source).type_name == "steam_supply":
+            if getattr(fs.unit(s.target), "outside_cascade", False):
+                continue   # steam for an air heater or a dryer's heating surfaces
+            top_of = getattr(fs.unit(s.target), "cascade_top_temperature", None)
+            if top_of is not None:  # live steam that heats nothing directly (a thermocompressor's motive)
+                own = {q.name: values[f"{s.target}.{q.name}"] for q in fs.unit(s.target).quantities()
+                       if f"{s.target}.{q.name}" in locked}
+                t = top_of(own)
+                if t is not None:
+                    t_top = max(t_top or 0.0, t)
+                continue
             if f"{s.name}.temperature" in locked:
                 t = values[f"{s.name}.temperature"]
             elif f"{s.name}.pressure" in locked:
@@ -153,6 +166,14 @@ def initial_guess(model) -> dict[str, float]:
             hints["boiling_temperature"] = t_b
         if name in effects:
             hints["evaporation"] = evaporation / n_effects
+        # fixed stream values at the unit's own ports: port -> {variable: value}
+        hints["fixed_ports"] = {}
+        for s in streams:
+            for unit_name, port in ((s.source, s.source_port), (s.target, s.target_port)):
+                if unit_name == name:
+                    for var in STREAM_KINDS[s.kind].variable_names:
+                        if f"{s.name}.{var}" in locked:
+                            hints["fixed_ports"].setdefault(port, {})[var] = values[f"{s.name}.{var}"]
         hints_by_unit[name] = hints
 
     def stream_defaults(kind_name: str) -> dict[str, float]:
@@ -176,6 +197,12 @@ def initial_guess(model) -> dict[str, float]:
         if path not in locked and value is not None and np.isfinite(value):
             values[path] = float(value)
 
+    def record_demands(name: str, guess) -> None:
+        for port, var_values in guess.inlets.items():
+            stream = fs.stream_at(name, port)
+            if stream is not None and fs.unit(stream.source).boundary != "source":
+                hints_by_unit[stream.source].setdefault("demand", {})[stream.source_port] = dict(var_values)
+
     order = _unit_order(fs)
     for _ in range(PASSES):
         for name in order:
@@ -183,6 +210,8 @@ def initial_guess(model) -> dict[str, float]:
             inlets = {s.target_port: current[s.name] for s in streams if s.target == name}
             try:
                 guess = unit.guess(inlets, hints_by_unit[name])
+            except SpecificationError:
+                raise   # a unit found its fixed values impossible: say so before any solve
             except (KeyError, ZeroDivisionError, ValueError, TypeError):
                 continue
             for port, var_values in guess.streams.items():
@@ -204,6 +233,32 @@ def initial_guess(model) -> dict[str, float]:
                     path = f"{stream.name}.{var}"
                     put(path, val)
                     current[stream.name][var] = values.get(path, val)
+            record_demands(name, guess)
+        # backward sweep: what a unit needs at an inlet fed by another unit (a dryer's air flow) is
+        # passed upstream, unit by unit, to the source that supplies it
+        for name in reversed(order):
+            if not hints_by_unit[name].get("demand"):
+                continue
+            inlets = {s.target_port: current[s.name] for s in streams if s.target == name}
+            try:
+                guess = fs.unit(name).guess(inlets, hints_by_unit[name])
+            except (KeyError, ZeroDivisionError, ValueError, TypeError):
+                continue
+            if not guess.inlets:   # a unit without its own rule (a steam header): pass the sum of the flows
+                ports = fs.unit(name).ports()
+                for kind in {p.kind for p in ports if p.direction == "in"}:
+                    ins = [p.name for p in ports if p.direction == "in" and p.kind == kind]
+                    asked = [hints_by_unit[name]["demand"][p.name].get("flow") for p in ports
+                             if p.direction == "out" and p.kind == kind and p.name in hints_by_unit[name]["demand"]]
+                    if len(ins) == 1 and asked and None not in asked:
+                        guess.inlets[ins[0]] = {"flow": sum(asked)}
+            for port, var_values in guess.inlets.items():
+                stream = fs.stream_at(name, port)
+                if stream is not None and fs.unit(stream.source).boundary == "source":
+                    for var, val in var_values.items():
+                        put(f"{stream.name}.{var}", val)
+                        current[stream.name][var] = values.get(f"{stream.name}.{var}", val)
+            record_demands(name, guess)
     for s in streams:
         for var, val in current[s.name].items():
             values.setdefault(f"{s.name}.{var}", val)

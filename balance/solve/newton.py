@@ -93,7 +93,12 @@ def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float 
     history = []
     message = ""
     for iteration in range(max_iter + 1):
-        gs, step = system.step(xs, p, dx, dr)
+        try:
+            gs, step = system.step(xs, p, dx, dr)
+        except RuntimeError as exc:  # CasADi's sparse solve on a numerically singular Jacobian
+            message = f"the Jacobian is singular at the current point ({str(exc).splitlines()[0][:120]})"
+            history.append(np.inf)
+            break
         gs = np.asarray(gs, dtype=float).ravel()
         step = np.asarray(step, dtype=float).ravel()
         norm = float(np.max(np.abs(gs))) if gs.size else 0.0

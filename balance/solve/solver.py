@@ -7,11 +7,13 @@ import time
 import numpy as np
 
 from balance.equations.model import Model, compile_flowsheet
-from balance.errors import InputError
+from balance.equations.structure import analyse, describe_imbalance
+from balance.errors import InputError, SpecificationError
 from balance.flowsheet.graph import Flowsheet
 from balance.solve.checks import (RESIDUAL_LIMIT, check_values, overall_balances, range_warnings,
-                                  worst_equations)
+                                  unit_problems, worst_equations)
 from balance.solve.evaluate import Evaluator
+from balance.solve.feasibility import raise_if_infeasible
 from balance.solve.guess import initial_guess
 from balance.solve.newton import CompiledSystem, RawSolution, bounded_feasibility, newton
 from balance.solve.result import Solution, StreamResult, UnitResult
@@ -38,6 +40,10 @@ class Solver:
     def __init__(self, model: Model | Flowsheet):
         started = time.perf_counter()
         self.model = model if isinstance(model, Model) else compile_flowsheet(model)
+        structure = analyse(self.model)
+        if not structure.structurally_sound:
+            raise SpecificationError(describe_imbalance(self.model, structure), file=self.model.flowsheet.file)
+        raise_if_infeasible(self.model, self.model.parameter_values())
         self.system = CompiledSystem(self.model)
         self.evaluator = Evaluator(self.model)
         self.build_seconds = time.perf_counter() - started
@@ -93,6 +99,15 @@ class Solver:
                     bounded = polished
             if raw is None or bounded.residual_norm < raw.residual_norm or bounded.converged:
                 raw = bounded
+        if method == "auto" and (not raw.converged or check_values(self.model, self._figures(raw.x))):
+            # continuation from an easier problem (balance/solve/continuation.py) before giving up
+            from balance.solve.continuation import continuation_solve
+            rescued = continuation_solve(self.system, x0, self.p, guess=lambda _p: self.guess())
+            attempts += rescued.attempts
+            if rescued.converged and not check_values(self.model, self._figures(rescued.raw.x)):
+                raw = rescued.raw
+            elif rescued.raw is not None and not raw.converged and rescued.raw.residual_norm < raw.residual_norm:
+                raw = rescued.raw
         return self._result(raw, attempts, range_policy)
 
     def _figures(self, x: np.ndarray) -> dict:
@@ -107,6 +122,7 @@ class Solver:
             if raw.converged:
                 problems.append(f"residual {raw.residual_norm:.2e} above {RESIDUAL_LIMIT:g}")
         problems += check_values(model, figures)
+        problems += unit_problems(model, figures)
         balances = overall_balances(model, figures)
         for balance in balances.values():
             if raw.converged and not balance.closes:
