@@ -320,7 +320,7 @@ def build_parser() -> argparse.ArgumentParser:
                    help="leave out the key figures (much faster: they are computed case by case)")
     p.add_argument("--workers", type=int, metavar="N", help="local worker processes (default: all cores)")
     p.add_argument("--dask-scheduler", metavar="ADDRESS",
-                   help="run on a Dask cluster, e.g. tcp://10.0.0.5:8786 (needs the 'sweep' extra)")
+                   help="run on a Dask cluster, e.g. tcp://10.0.0.5:8786 (needs dask[distributed])")
     p.add_argument("--chunk-size", type=int, default=500, metavar="N", help="cases per batch (default 500)")
     p.add_argument("--compile", default="auto", choices=("auto", "always", "never"),
                    help="compile the batch Newton to C with the system compiler (auto: when it pays or is "

@@ -12,6 +12,7 @@ between the effects' vapour and the dryers' exhaust.
 
 from __future__ import annotations
 
+import warnings
 from pathlib import Path
 
 import pytest
@@ -19,12 +20,20 @@ import pytest
 from balance.analysis.key_figures import key_figures
 from balance.flowsheet.file_format import load
 from balance.properties import humid_air
+from balance.properties.liquors import LiquorWarning
 from balance.solve import solve
 from balance.unitops.drying_streams import powder_enthalpy
 
 FLOWSHEETS = Path(__file__).resolve().parent.parent / "flowsheets"
-DRYING_DEMOS = sorted(p for p in FLOWSHEETS.glob("*.toml")
-                      if any(getattr(u, "dries", False) for u in load(p).units.values()))
+
+
+def _has_dryer(path) -> bool:
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", LiquorWarning)     # NaOH demos: heat of dilution not modelled
+        return any(getattr(u, "dries", False) for u in load(path).units.values())
+
+
+DRYING_DEMOS = sorted(p for p in FLOWSHEETS.glob("*.toml") if _has_dryer(p))
 
 
 def test_there_are_drying_demos():
@@ -123,7 +132,7 @@ def test_line_splits_water_between_evaporator_and_dryer():
     assert vapour * 3600 == pytest.approx(20000 * (1 - 0.09 / 0.48), rel=1e-9)
     # the evaporator removes water for far less heat than the dryer (common practice: a
     # three-effect train near 800-900 kJ/kg, a spray dryer 3500-5500 kJ/kg)
-    assert figures["evaporator_heat_per_water"].value < 0.3 * figures["dryer_specific_heat"].value
+    assert figures["heat_per_water"].value < 0.3 * figures["dryer_specific_heat"].value
 
 
 def test_dryer_design_and_rating_agree():

@@ -22,7 +22,6 @@ from scipy.integrate import quad
 
 from balance.errors import InputError
 from balance.flowsheet.file_format import from_dict
-from balance.properties import humid_air, water
 from balance.properties.liquors import builtin_liquor
 from balance.solve import solve
 from balance.unitops.air_handling import effectiveness_counterflow, effectiveness_crossflow_unmixed
@@ -304,3 +303,63 @@ def test_cyclone_lost_product():
     assert lost == pytest.approx(0.01 * 0.2 * solids / 0.96, rel=1e-9)
     assert s.value("out.flow") + lost == pytest.approx(solids / 0.96, rel=1e-9)
     assert s.value("cyc.emission_out.solids") == pytest.approx(0.96, rel=1e-12)
+
+
+# ---------------------------------------------------------------------------
+# indirect heat and wall losses
+
+
+def _bed(**bed):
+    return _solve({"feed": {"type": "feed", "liquor": "skim_milk", "flow": "1000 kg/h", "solids": "90 %",
+                            "temperature": "40 degC"},
+                   "amb": {"type": "ambient_air", "temperature": "20 degC", "relative_humidity": "50 %",
+                           "flow": "2 kg/s"},
+                   "heater": {"type": "electric_air_heater", "outlet_temperature": "80 degC"},
+                   "bed": {"type": "fluid_bed", "feed": "liquor", "outlet_temperature": "60 degC",
+                           "product_moisture": "4 %", **bed},
+                   "stack": {"type": "air_exhaust"}, "powder": {"type": "powder_product"}},
+                  {"f": "feed.out -> bed.feed_in", "a": "amb.out -> heater.air_in", "h": "heater.air_out -> bed.air_in",
+                   "e": "bed.air_out -> stack.in", "p": "bed.product_out -> powder.in"})
+
+
+def test_fluid_bed_with_steam_heated_plates():
+    s = solve(from_dict({
+        "flowsheet": {"title": "plates"},
+        "units": {"feed": {"type": "feed", "liquor": "skim_milk", "flow": "1000 kg/h", "solids": "90 %",
+                           "temperature": "40 degC"},
+                  "amb": {"type": "ambient_air", "temperature": "20 degC", "relative_humidity": "50 %",
+                          "flow": "2 kg/s"},
+                  "heater": {"type": "electric_air_heater", "outlet_temperature": "80 degC"},
+                  "steam": {"type": "steam_supply", "pressure": "300 kPa"},
+                  "bed": {"type": "fluid_bed", "feed": "liquor", "indirect_heating": "steam",
+                          "outlet_temperature": "60 degC", "product_moisture": "4 %"},
+                  "stack": {"type": "air_exhaust"}, "powder": {"type": "powder_product"}},
+        "streams": {"f": "feed.out -> bed.feed_in", "a": "amb.out -> heater.air_in",
+                    "h": "heater.air_out -> bed.air_in", "s": "steam.out -> bed.heating_in",
+                    "e": "bed.air_out -> stack.in", "p": "bed.product_out -> powder.in"}}))
+    assert s.converged, s.problems
+    bed = s.units["bed"]
+    # the plates supply what the air cannot: steam condensing at 300 kPa gives up h_fg 2163.4 kJ/kg
+    # (IAPWS-IF97 steam tables)
+    assert bed.quantities["indirect_heat"] > 0
+    assert s.value("s.flow") == pytest.approx(bed.quantities["indirect_heat"] / 2163.4e3, rel=1e-4)
+    assert bed.figures["driving_force"] == pytest.approx(133.53 - (60.0 - 3.0), abs=0.01)
+    # no "air colder than the product" refusal with indirect heat, and the balances close
+    assert all(abs(b.closure) < 1e-9 for b in s.balances.values())
+
+
+def test_heat_loss_by_wall_conductance_and_by_fraction():
+    ua = _bed(heat_loss_basis="conductance", loss_conductance="0.5 kW/K", outlet_temperature="solve")
+    # heat loss = U A (T_exhaust - T_ambient) with the 20 °C default ambient
+    t_out = ua.value("bed.outlet_temperature")
+    assert ua.units["bed"].quantities["heat_loss"] == pytest.approx(500.0 * (t_out - 293.15), rel=1e-9)
+    frac = _bed(heat_loss_fraction="10 %", outlet_temperature="solve")
+    heat_in = frac.units["bed"].figures["heat_input"]
+    assert frac.units["bed"].quantities["heat_loss"] == pytest.approx(0.1 * heat_in, rel=1e-9)
+    # heat brought in above ambient: G (h(80 °C) - h(20 °C)) at the inlet humidity (psychrolib, Eq. 30)
+    w = frac.value("a.humidity")
+    assert heat_in == pytest.approx(2.0 * (psychrolib.GetMoistAirEnthalpy(80.0, w)
+                                           - psychrolib.GetMoistAirEnthalpy(20.0, w)), rel=1e-3)
+    # more loss, cooler exhaust
+    assert frac.value("bed.outlet_temperature") < _bed(heat_loss_fraction=0.0, outlet_temperature="solve").value(
+        "bed.outlet_temperature")

@@ -126,14 +126,14 @@ def _largest_feed(fs, cooling_flow, limits):
     import casadi as ca
     values = ca.Function("limits", [model.x, model.p], [ca.vertcat(*[l.expression.expr for l in limits])])
 
-    def holds(feed, warm):
+    def holds(feed, _warm):
         solver.set("feed.flow", feed)
-        solution = solver.solve(warm=warm)
+        solution = solver.solve()       # from the automatic guess: a few Newton steps
         assert solution.converged, solution.problems
         v = np.asarray(values(solution.x, solver.p), dtype=float).ravel()
         return all(l.margin(x) >= 0 for l, x in zip(limits, v)), solution
 
-    low, high = 20000 / 3600, 40000 / 3600
+    low, high = 20000 / 3600, 30000 / 3600
     ok, warm = holds(low, None)
     assert ok
     while high - low > 1e-7 * low:
@@ -149,7 +149,7 @@ def _largest_feed(fs, cooling_flow, limits):
 def test_constrained_optimum_matches_brute_force(most_feed):
     fs, optimiser, result = most_feed
     assert result.converged, result.status
-    best = max(_largest_feed(fs, cw, fs.extras["limits"]) for cw in np.linspace(250e3, 400e3, 4) / 3600)
+    best = max(_largest_feed(fs, cw, fs.extras["limits"]) for cw in np.linspace(250e3, 400e3, 3) / 3600)
     assert result.decisions["feed.flow"] == pytest.approx(best, rel=1e-6)
     assert result.decisions["cooling.flow"] == pytest.approx(400e3 / 3600, rel=1e-9)
     active = {s.name for s in result.active}

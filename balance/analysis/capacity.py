@@ -40,7 +40,6 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
-from typing import Any
 
 import casadi as ca
 import numpy as np
@@ -54,7 +53,8 @@ from balance.solve.newton import newton
 
 METHODS = ("sweep", "optimise")
 TOLERANCE = 1e-6
-#: Newton iterations allowed for one warm-started sweep step.
+#: Newton iterations allowed for one sweep step from the neighbouring point, then from the guess.
+WARM_ITERATIONS = 8
 STEP_ITERATIONS = 30
 
 
@@ -287,9 +287,14 @@ def _sweep(fs, path, up_to, table, limits, steps) -> CapacityStudy:
         counter["solves"] += 1
         x = None
         if method == "newton" and warm is not None:
-            raw = newton(solver.system, np.asarray(warm, dtype=float), solver.p, max_iter=STEP_ITERATIONS)
-            if raw.converged and not check_values(model, solver.evaluator.evaluate(raw.x, solver.p)):
-                x = raw.x
+            # From the neighbouring point first; if the line search crawls (Newton's monotone line
+            # search can refuse the full step near a solution), from the plant-reasoning guess.
+            for start, iterations in ((lambda: np.asarray(warm, dtype=float), WARM_ITERATIONS),
+                                      (solver.guess, STEP_ITERATIONS)):
+                raw = newton(solver.system, start(), solver.p, max_iter=iterations)
+                if raw.converged and not check_values(model, solver.evaluator.evaluate(raw.x, solver.p)):
+                    x = raw.x
+                    break
         else:
             sol = solver.solve(warm=warm)
             if sol.converged:
@@ -319,7 +324,7 @@ def _sweep(fs, path, up_to, table, limits, steps) -> CapacityStudy:
             t = (lo * m_hi - hi * m_lo) / (m_hi - m_lo)
             if not min(lo, hi) < t < max(lo, hi):
                 t = 0.5 * (lo + hi)
-            x_t, v_t = solve_at(t, x_lo if abs(t - lo) < abs(t - hi) else x_hi)
+            x_t, v_t = solve_at(t, x_lo + (t - lo) / (hi - lo) * (x_hi - x_lo))
             if x_t is None:
                 t = 0.5 * (lo + hi)
                 x_t, v_t = solve_at(t, x_lo)
@@ -354,15 +359,22 @@ def _sweep(fs, path, up_to, table, limits, steps) -> CapacityStudy:
 
     unsolvable = None
     rate, x_prev, m_prev = current, x0, m0
+    before = None                       # (rate, x) one step back, for the secant predictor
     step = (top - current) / steps
+
+    def predict(t):
+        if before is None:
+            return x_prev
+        return x_prev + (t - rate) / (rate - before[0]) * (x_prev - before[1])
+
     while rate < top - 1e-12 * top:
         t = min(rate + step, top)
-        x_t, v_t = solve_at(t, x_prev)
+        x_t, v_t = solve_at(t, predict(t))
         halvings = 0
         while x_t is None and halvings < 6:
             halvings += 1
             t = rate + (t - rate) / 2
-            x_t, v_t = solve_at(t, x_prev)
+            x_t, v_t = solve_at(t, predict(t))
         if x_t is None:
             x_t, v_t = solve_at(t, x_prev, method="auto")     # the whole fallback chain, once
         if x_t is None:
@@ -373,6 +385,7 @@ def _sweep(fs, path, up_to, table, limits, steps) -> CapacityStudy:
         for i in range(len(limits)):
             if capacity[i] is None and m_prev[i] >= 0 > m_t[i]:
                 capacity[i] = crossing(i, rate, x_prev, m_prev[i], t, x_t, m_t[i])
+        before = (rate, x_prev)
         rate, x_prev, m_prev = t, x_t, m_t
     solver.set(path, current)
 

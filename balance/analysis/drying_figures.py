@@ -91,13 +91,8 @@ def drying_figures(solution) -> list[KeyFigure]:
                                                                 inlet.values["humidity"], p))
         ideal += units[n].figures["evaporation"] * float(water.latent_heat(max(t_as, 273.16)))
 
-    # live-steam heat less what the steam coils and steam-heated dryers take (their duty is the
-    # same condensing heat when the live steam reaches them unchanged)
-    live_heat = base["live_steam_heat"]
-    steam_to_drying = (sum(u.quantities["duty"] for u in heaters if u.type_name == "steam_air_heater")
-                       + sum(units[n].quantities.get("indirect_heat", 0.0) for n in dryers
-                             if fs.unit(n).setting("indirect_heating") == "steam"))
-    steam_heat_evaporator = max(live_heat - steam_to_drying, 0.0)
+    # the evaporation figures already leave out the steam that air heaters and dryers take
+    steam_heat_evaporator = base["live_steam_heat"]
     electrical = sum(u.quantities.get("electrical_power", 0.0) for u in units.values())
 
     if has_evaporators:
@@ -107,8 +102,6 @@ def drying_figures(solution) -> list[KeyFigure]:
             KeyFigure("evaporator_share", "evaporators: share of the water removed",
                       _ratio(evaporator_water, total), "fraction"),
             KeyFigure("dryer_share", "dryers: share of the water removed", _ratio(dryer_water, total), "fraction"),
-            KeyFigure("evaporator_heat_per_water", "evaporators: live-steam heat per kg water",
-                      _ratio(steam_heat_evaporator, evaporator_water), "specific_enthalpy"),
         ]
     figures += [
         KeyFigure("dryer_water_removed", "dryers: water removed", dryer_water, "mass_flow"),

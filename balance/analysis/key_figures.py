@@ -4,8 +4,12 @@ Definitions (all per unit time at steady state):
 
 * **water evaporated**: water entering with liquor feeds minus water leaving
   with liquor (and powder) products, i.e. what the line removed;
-* **live steam**: the sum of all steam supplies (motive steam included);
-* **steam economy**: water evaporated per kg of live steam [kg/kg];
+* **live steam**: the sum of all steam supplies (motive steam included)
+  that serve the evaporators (steam to air heaters and dryers is counted by
+  the drying figures);
+* **steam economy**: water evaporated per kg of live steam [kg/kg]; in a
+  line with dryers, the evaporators' share of the water per kg of their
+  live steam;
 * **specific steam consumption**: live steam per tonne of water evaporated;
 * **live-steam heat**: what the live steam gives up condensing to saturated
   liquid at its own pressure [W];
@@ -85,14 +89,23 @@ def evaporation_figures(solution) -> list[KeyFigure]:
             product_water += s.water_flow
             product_flow += s.values["flow"]
             product_solids += s.solids_flow
-        if source.type_name == "steam_supply":
+        if source.type_name == "steam_supply" or (s.kind == "vapour" and getattr(target, "outside_cascade", False)):
+            # live steam in, less the steam that air heaters and dryers take (counted by the drying figures)
+            sign = 1.0 if source.type_name == "steam_supply" else -1.0
+            if source.type_name == "steam_supply" and getattr(target, "outside_cascade", False):
+                sign = 0.0
             flow = s.values["flow"]
-            steam += flow
+            steam += sign * flow
             t_sat = float(water.saturation_temperature(s.values["pressure"]))
-            steam_heat += flow * (s.specific_enthalpy - float(water.liquid_enthalpy(t_sat)))
+            steam_heat += sign * flow * (s.specific_enthalpy - float(water.liquid_enthalpy(t_sat)))
         if source.type_name == "cooling_water":
             cooling += s.values["flow"]
     evaporated = feeds_water - product_water
+    # in a line with dryers, economy and heat per kg water belong to the evaporators alone
+    dryer_water = sum(units[n].figures.get("evaporation", 0.0) for n, u in fs.units.items()
+                      if getattr(u, "dries", False) and n in units)
+    by_steam = evaporated - dryer_water
+    prefix = "evaporators: " if dryer_water else ""
     figures = [
         KeyFigure("feed_flow", "feed", feed_flow, "mass_flow"),
         KeyFigure("feed_solids", "feed solids", feeds_solids / feed_flow if feed_flow else 0.0, "fraction"),
@@ -100,14 +113,14 @@ def evaporation_figures(solution) -> list[KeyFigure]:
         KeyFigure("product_solids", "product solids",
                   product_solids / product_flow if product_flow else 0.0, "fraction"),
         KeyFigure("water_evaporated", "water evaporated", evaporated, "mass_flow"),
-        KeyFigure("live_steam", "live steam", steam, "mass_flow"),
-        KeyFigure("steam_economy", "steam economy (kg water / kg live steam)",
-                  evaporated / steam if steam > 0 else float("nan"), "ratio"),
-        KeyFigure("specific_steam", "live steam per tonne of water (kg/t)",
-                  1000.0 * steam / evaporated if evaporated > 0 else float("nan"), "ratio"),
-        KeyFigure("live_steam_heat", "live-steam heat", steam_heat, "power"),
-        KeyFigure("heat_per_water", "live-steam heat per kg water",
-                  steam_heat / evaporated if evaporated > 0 else float("nan"), "specific_enthalpy"),
+        KeyFigure("live_steam", prefix + "live steam", steam, "mass_flow"),
+        KeyFigure("steam_economy", prefix + "steam economy (kg water / kg live steam)",
+                  by_steam / steam if steam > 0 else float("nan"), "ratio"),
+        KeyFigure("specific_steam", prefix + "live steam per tonne of water (kg/t)",
+                  1000.0 * steam / by_steam if by_steam > 0 else float("nan"), "ratio"),
+        KeyFigure("live_steam_heat", prefix + "live-steam heat", steam_heat, "power"),
+        KeyFigure("heat_per_water", prefix + "live-steam heat per kg water",
+                  steam_heat / by_steam if by_steam > 0 else float("nan"), "specific_enthalpy"),
     ]
     area = {"effect": 0.0, "preheater": 0.0, "condenser": 0.0}
     condenser_duty = 0.0

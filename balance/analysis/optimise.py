@@ -56,7 +56,7 @@ import math
 import re
 import time
 from contextlib import contextmanager
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any, Callable
 
 import casadi as ca
@@ -697,7 +697,7 @@ def _columns(rows: list[list[str]]) -> list[str]:
 
 
 #: Larger steps for the words when one display unit is worth too little to read.
-_BIG_STEPS = {"mass_flow": (1000.0 / 3600.0, "t/h"), "power": (1e6, "MW"), "area": (10.0, "10 m2")}
+_BIG_STEPS = {"mass_flow": (1000.0 / 3600.0, "t/h"), "power": (1e6, "MW")}
 
 
 def _worth(objective: Objective, limit_words: str, kind: str | None, sense: str, sensitivity: float) -> str:
@@ -776,12 +776,7 @@ class Optimiser:
             if key not in ("objective", "vary", "capital"):
                 raise InputError("unknown key in [optimise]; keys: objective, vary, capital",
                                  file=file, key=f"optimise.{key}")
-        self.base_solver = Solver(compile_flowsheet(fs))
-        self.base_p = self.base_solver.p.copy()
-        self.base = base if base is not None else self.base_solver.solve()
-        if not self.base.converged:
-            raise SolveError("the base case does not solve, and an optimisation starts from a solved plant: "
-                             + "; ".join(self.base.problems[:3]), file=file)
+        base_model = compile_flowsheet(fs)      # the file as it stands must be square
 
         if vary is None:
             decisions = read_decisions(fs, self.table.get("vary"), file=file)
@@ -795,7 +790,7 @@ class Optimiser:
             self.model = compile_flowsheet(fs, require_square=False)
         dof = self.model.n_unknowns - self.model.n_equations
         newly_free = [d for d in decisions if resolve_path(fs, d.path) in
-                      {v.path for v in self.base_solver.model.parameters}]
+                      {v.path for v in base_model.parameters}]
         if dof != len(newly_free):
             raise SpecificationError(f"freeing the decisions should leave {len(newly_free)} degrees of freedom, "
                                      f"but leaves {dof}", file=file, key="optimise.vary")
@@ -815,6 +810,13 @@ class Optimiser:
         if limits is None:
             limits = fs.extras.get("limits")
         self.limits = limits if isinstance(limits, list) else read_limits(m, limits, file=file)
+
+        self.base_solver = Solver(base_model)
+        self.base_p = self.base_solver.p.copy()
+        self.base = base if base is not None else self.base_solver.solve()
+        if not self.base.converged:
+            raise SolveError("the base case does not solve, and an optimisation starts from a solved plant: "
+                             + "; ".join(self.base.problems[:3]), file=file)
 
         # starting point: the base case
         self.x0 = np.array([self.base.values[v.path] for v in m.unknowns], dtype=float)

@@ -23,9 +23,11 @@ How a sweep runs
    `balance.analysis.key_figures.key_figures` on a `Solution` assembled from
    the figures, so a row holds the numbers a direct solve prints.
 4. A case the batch did not solve is tried again in the batch from its
-   nearest solved neighbour in the same chunk, then by the full `Solver`
-   (damped Newton, IPOPT within bounds) warm-started from that neighbour,
-   then from the automatic initial guess. The row's ``solved_by`` says which.
+   nearest solved neighbour in the same chunk; then, unless the pre-solve
+   feasibility check (`balance.solve.feasibility.precheck`) already says no
+   plant can meet it, by the full `Solver` (damped Newton, IPOPT within
+   bounds) warm-started from that neighbour, then from the automatic initial
+   guess. The row's ``solved_by`` says which; a failed row says why.
 5. Chunks run on local worker processes (each compiles the model once) or on
    a Dask cluster (``dask_scheduler=``). A chunk's result depends only on the
    chunk, so every executor gives the same rows.
@@ -54,7 +56,6 @@ from __future__ import annotations
 
 import csv
 import hashlib
-import itertools
 import math
 import os
 import shutil
@@ -70,6 +71,7 @@ import numpy as np
 
 from balance.errors import InputError, SolveError
 from balance.solve.checks import RESIDUAL_LIMIT, check_values, overall_balances, range_warnings, worst_equations
+from balance.solve.feasibility import precheck
 from balance.solve.newton import TOLERANCE
 from balance.solve.result import Solution, StreamResult, UnitResult
 
@@ -770,6 +772,12 @@ def solve_chunk(engine: CompiledSweepModel, cases: np.ndarray, start: int, plan:
             else (plan.base_x, "the base")
         engine.set_case(cases[i])
         try:
+            infeasible = precheck(engine.solver.model, engine.solver.p)
+            if infeasible:   # no plant meets this case: say why in plant words, without a solve
+                outcomes[i] = CaseOutcome(False, "infeasible specification", "pre-solve check", 0, float("nan"),
+                                          "; ".join(infeasible), "", [nan] * len(names), [nan] * len(output_rows))
+                counts["failed"] += 1
+                continue
             solution = engine.solver.solve(warm=warm)
             solved_by = f"{solution.method} from {label}"
             if not solution.converged and "infeasible" not in solution.message.lower():
@@ -957,16 +965,23 @@ class SweepResult:
         try:
             import pandas as pd
         except ImportError:
-            raise InputError("pandas is not installed; pip install 'balance[sweep]'", key="pandas") from None
+            raise InputError("pandas is not installed; pip install pandas", key="pandas") from None
         return pd.DataFrame(self.column_arrays(units))
 
     def write_csv(self, handle, units: str = "si") -> None:
-        """Write the rows as CSV to an open text file."""
+        """Write the rows as CSV to an open text file.
+
+        SI numbers are written with every digit (``repr``); numbers converted
+        to display units with 12 significant digits, which hides the last-bit
+        noise of the conversion. A missing number (a key figure of a failed
+        case) is an empty field.
+        """
+        number = repr if units == "si" else (lambda v: f"{v:.12g}")
         writer = csv.writer(handle)
         writer.writerow(self.columns(units))
         for row in self.rows(units):
             writer.writerow(["" if isinstance(v, float) and math.isnan(v) else
-                             repr(v) if isinstance(v, float) else v for v in row])
+                             number(v) if isinstance(v, float) else v for v in row])
 
     def write(self, path: str, units: str = "si", overwrite: bool = False) -> str:
         """Write the rows to CSV or Parquet, chosen by the file's ending; never over a file unless asked.
@@ -986,7 +1001,7 @@ class SweepResult:
                 import pyarrow as pa
                 import pyarrow.parquet as pq
             except ImportError:
-                raise InputError("writing Parquet needs pyarrow; pip install 'balance[sweep]', or write .csv",
+                raise InputError("writing Parquet needs pyarrow; pip install pyarrow, or write .csv",
                                  file=path) from None
             pq.write_table(pa.table(self.column_arrays(units)), path)
         else:
@@ -1248,10 +1263,10 @@ def _dask_client(address: str | None, client: Any):
     try:
         from distributed import Client
     except ImportError:
-        raise InputError("running on a Dask cluster needs dask.distributed; pip install 'balance[sweep]'",
+        raise InputError("running on a Dask cluster needs dask.distributed; pip install 'dask[distributed]'",
                          key="--dask-scheduler") from None
     try:
-        return Client(address, timeout="10s"), True
+        return Client(address, timeout="5s"), True
     except (OSError, TimeoutError) as exc:
         raise InputError(f"cannot reach the Dask scheduler: {exc}", key="--dask-scheduler") from None
 

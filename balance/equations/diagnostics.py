@@ -83,7 +83,7 @@ def check_report(fs) -> tuple[str, bool]:
         lines.append(f"{name:<28}{n_x:>10}{n_g:>11}{n_x - n_g:>+9}  {here}".rstrip())
     lines.append("(a unit owns its quantities and the variables of the streams it sends out; the balance "
                  "column sums to the overall degrees of freedom, and a unit's own balance need not be zero)")
-    report = analyse(model)
+    report = analyse(model, numerical=True)
     square = model.n_unknowns == model.n_equations
     ok = square and report.structurally_sound and not report.numerically_singular
     lines.append("")

@@ -263,14 +263,18 @@ def plant_words(model, variable) -> str:
     fs = model.flowsheet
     stream = fs.stream(variable.owner)
     source, target = fs.unit(stream.source), fs.unit(stream.target)
+    def kind_of(unit_name, unit):
+        words = unit.type_name.replace("_", " ")
+        return unit_name if words == unit_name else f"{unit_name} ({words})"
+
     if source.boundary == "source":
-        return f"the {name} of {stream.source}"
+        return f"the {name} of {kind_of(stream.source, source)}"
     if target.boundary == "sink" and not stream.target.startswith("leaves:"):
-        return f"the {name} of {stream.target}"
+        return f"the {name} of {kind_of(stream.target, target)}"
     if target.type_name in ("condenser", "direct_contact_condenser") and variable.name == "pressure":
         return f"the condenser pressure ({stream.target})"
     if stream.target.startswith("leaves:"):
-        return f"the {name} of {stream.source}.{stream.source_port}"
+        return f"the {name} of what leaves {stream.source}.{stream.source_port}"
     return f"the {name} of the stream {stream.name} ({stream.source} to {stream.target})"
 
 
@@ -313,17 +317,21 @@ def _fixed_by_equation(model) -> dict[int, set[int]]:
     return out
 
 
-def analyse(model, numerical: bool = True) -> StructuralReport:
+def analyse(model, numerical: bool | None = None) -> StructuralReport:
     """Structural analysis of a compiled model (square or not).
 
     Parameters
     ----------
     model : balance.equations.model.Model
-    numerical : bool
+    numerical : bool, optional
         Also look for equations that combine into a relation among fixed
-        values only (`numerical_dependencies`); this names the culprit when
+        values only (`numerical_dependencies`), which names the culprit when
         the structure alone cannot, as when feed rate, feed solids, product
-        rate and product solids are all fixed.
+        rate and product solids are all fixed. True: everywhere, including
+        a square and sound model (what ``balance check`` does; it evaluates
+        the Jacobian at two trial points, a few tenths of a second for a
+        line of a hundred unknowns). None (default): only to sharpen the
+        message of an over-determined part. False: never.
 
     Returns
     -------
@@ -344,6 +352,8 @@ def analyse(model, numerical: bool = True) -> StructuralReport:
     report = StructuralReport(n_x, n_g, over_r, under_c, [], unmatched_rows, unmatched_cols,
                               structural_rank=len(matching) // 2)
     fixed_in = _fixed_by_equation(model) if over_r or numerical else {}
+    square_check = numerical is True
+    numerical = numerical is not False
     params = model.parameters
     report.over_fixed = [params[c].path for c in sorted({c for i in over_r for c in fixed_in.get(i, ())})]
 
@@ -372,7 +382,7 @@ def analyse(model, numerical: bool = True) -> StructuralReport:
         first = sorted(first, key=lambda c: _candidate_rank(model, params[c]))
         block.candidates = [display_path(model, params[c]) for c in first + rest]
         report.over_blocks.append(block)
-    if numerical and n_g == n_x and report.structurally_sound:
+    if square_check and n_g == n_x and report.structurally_sound:
         # Only conservation balances (mass, solids, dry air) and 'same' requirements are trusted
         # here: they are linear in the flows, so a dependency among them holds at every point,
         # whereas a dependency among nonlinear equations may be an accident of the trial points.
@@ -611,7 +621,7 @@ def describe_imbalance(model, report: StructuralReport | None = None) -> str:
     -------
     str
     """
-    report = report or analyse(model)
+    report = report or analyse(model, numerical=True)
     n_x, n_g = model.n_unknowns, model.n_equations
     lines = []
     if n_x > n_g:

@@ -12,6 +12,7 @@ turns any violation into a recorded warning or, under the strict policy, an
 from __future__ import annotations
 
 import functools
+import math
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
@@ -39,7 +40,8 @@ class ValidRange:
 
     def contains(self, value: float, rel_tol: float = 1e-9) -> bool:
         """True if ``value`` lies inside the range (with a small tolerance)."""
-        span = max(abs(self.high - self.low), 1.0)
+        span = self.high - self.low
+        span = max(abs(span), 1.0) if math.isfinite(span) else max(abs(self.low), abs(self.high) if math.isfinite(self.high) else 0.0, 1.0)
         return self.low - rel_tol * span <= value <= self.high + rel_tol * span
 
     def describe(self) -> str:

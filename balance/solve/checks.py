@@ -62,13 +62,12 @@ def overall_balances(model, figures: dict) -> dict[str, Balance]:
     totals = {k: [0.0, 0.0] for k in ("water", "solids", "dry air", "energy")}
     for stream in fs.streams:
         source, target = fs.unit(stream.source), fs.unit(stream.target)
-        side = 0 if source.boundary == "source" else 1 if target.boundary == "sink" else None
-        if side is None:
-            continue
-        totals["water"][side] += figures[("stream", stream.name, "water_flow")]
-        totals["solids"][side] += figures[("stream", stream.name, "solids_flow")]
-        totals["dry air"][side] += figures[("stream", stream.name, "dry_air_flow")]
-        totals["energy"][side] += figures[("stream", stream.name, "enthalpy_flow")]
+        sides = [0] * (source.boundary == "source") + [1] * (target.boundary == "sink")
+        for side in sides:    # a stream from a source straight to a sink counts on both sides
+            totals["water"][side] += figures[("stream", stream.name, "water_flow")]
+            totals["solids"][side] += figures[("stream", stream.name, "solids_flow")]
+            totals["dry air"][side] += figures[("stream", stream.name, "dry_air_flow")]
+            totals["energy"][side] += figures[("stream", stream.name, "enthalpy_flow")]
     external = sum(figures[("external_power", u)] for u in model.external_power)
     if external >= 0:
         totals["energy"][0] += external
@@ -87,7 +86,15 @@ def overall_balances(model, figures: dict) -> dict[str, Balance]:
 
 def range_warnings(model, figures: dict, policy: str = "warn") -> list[str]:
     numbers = [figures[("range", i)] for i in range(len(model.range_checks))]
-    return enforce(model.range_checks, numbers, policy=policy, file=model.flowsheet.file)
+    out = enforce(model.range_checks, numbers, policy=policy, file=model.flowsheet.file)
+    for name, unit in model.flowsheet.units.items():
+        smallest = unit.settings_values.get("min_driving_force")
+        if smallest is None or ("unit", name, "driving_force") not in figures:
+            continue
+        value = figures[("unit", name, "driving_force")]
+        if 0 < value < smallest:
+            out.append(f"{name}: driving force {value:.2f} K is below its min_driving_force of {smallest:g} K")
+    return out
 
 
 def worst_equations(model, figures: dict, count: int = 5) -> list[tuple[str, float]]:

@@ -36,9 +36,9 @@ import math
 
 import casadi as ca
 
-from balance.errors import InfeasibleSpecificationError, InputError
+from balance.errors import InfeasibleSpecificationError
 from balance.properties import humid_air, water
-from balance.properties.validity import RangeCheck, ValidRange
+from balance.properties.validity import RangeCheck, ValidRange, valid_for
 from balance.unitops import drying_streams as ds
 from balance.unitops.base import Guess, Port, QuantitySpec, Setting, UnitOperation, register
 
@@ -165,6 +165,7 @@ def moist_air_heat_capacity_ratio(W):
     return cp / (cp - moist_air_gas_constant(W))
 
 
+@valid_for(W=(0.0, 0.5, "kg/kg"), T_in=(233.15, 573.15, "K"), dp=(0.0, 50e3, "Pa"))
 def fan_gas_power(G, W, T_in, p_in, dp):
     """Isentropic compression power of moist air, [W].
 
@@ -370,6 +371,7 @@ class _DewPointCheck(RangeCheck):
                 "condensate would wet the surface and fines would cake on it (fouling, corrosion)")
 
 
+@valid_for(ntu=(0.0, 100.0, "-"), cr=(0.0, 1.0, "-"))
 def effectiveness_counterflow(ntu, cr):
     """Effectiveness of a counterflow exchanger, [-] (Incropera & DeWitt 6th ed., eq. 11.29a).
 
@@ -389,6 +391,7 @@ def effectiveness_counterflow(ntu, cr):
     return ca.if_else(near, ntu / (1 + ntu), (1 - e) / (1 - cr_safe * e))
 
 
+@valid_for(ntu=(0.0, 100.0, "-"), cr=(1e-9, 1.0, "-"))
 def effectiveness_crossflow_unmixed(ntu, cr):
     """Effectiveness of a crossflow exchanger, both fluids unmixed, [-] (Incropera & DeWitt 6th ed., eq. 11.32).
 

@@ -69,9 +69,8 @@ def fuel_properties(composition: Mapping[str, float] | None = None, *, file=None
     Parameters
     ----------
     composition : mapping, optional
-        Mole fractions by component name (`FUEL_COMPONENTS`); normalised if
-        they do not add up to 1 within 1e-3 an error is raised. Default:
-        pure methane.
+        Mole fractions by component name (`FUEL_COMPONENTS`), adding up to 1
+        within 1e-3. Default: pure methane.
 
     Returns
     -------
@@ -84,6 +83,9 @@ def fuel_properties(composition: Mapping[str, float] | None = None, *, file=None
     >>> round(lhv / 1e6, 2), round(y, 4)   # MJ/kg, kg/kg: methane
     (50.03, 2.2458)
     """
+    if composition is not None and not isinstance(composition, Mapping):
+        raise InputError(f"expected a table of mole fractions such as {{ methane = 0.9, ethane = 0.1 }}, "
+                         f"got {composition!r}", file=file, unit=unit, key="composition")
     composition = {"methane": 1.0} if composition is None else dict(composition)
     if not composition:
         raise InputError("the fuel composition is empty", file=file, unit=unit, key="composition")

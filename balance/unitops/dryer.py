@@ -43,8 +43,8 @@ temperature, the most favourable case). A product moisture target below
 it is refused before the solve when the target and the exhaust state are
 fixed, and makes the solution fail its checks otherwise.
 
-Checks: exhaust not supersaturated; product not wetter than its feed; in a
-drying stage without indirect heat, no air inlet colder than the product
+Checks: exhaust not supersaturated; in a drying stage, product not wetter
+than its feed; in a drying stage without indirect heat, no air inlet colder than the product
 and the exhaust not hotter than the hottest air inlet; operating limits on
 the outlet temperature, outlet relative humidity and inlet temperature
 (warnings, from settings with defaults per dryer kind).
@@ -352,7 +352,8 @@ class ConvectiveDryer(UnitOperation):
         """
         out = []
         p = self.setting("site_pressure")
-        if x_feed is not None and x_prod is not None and x_prod < x_feed - _X_TOL:
+        drying = self.setting("section") == "drying"      # a cooling section may take up moisture
+        if drying and x_feed is not None and x_prod is not None and x_prod < x_feed - _X_TOL:
             out.append(self._error(
                 f"the product ({100 * (1 - x_prod):.2f} % moisture) is wetter than its feed "
                 f"({100 * (1 - x_feed):.2f} % moisture): a dryer cannot add water", key_prod))
@@ -384,10 +385,12 @@ class ConvectiveDryer(UnitOperation):
                 except BalanceError:          # beyond the isotherm's pole: no finite equilibrium
                     ok, X_eq = False, math.inf
             if not ok:
+                holds = (f"holds at least {100 * X_eq:.2f} %" if math.isfinite(X_eq)
+                         else "lies beyond the pole of the isotherm (no finite equilibrium moisture)")
                 out.append(self._error(
                     f"product moisture {100 * X_target:.2f} % (dry basis) is physically unreachable: "
                     f"powder in the exhaust air ({t_out - 273.15:.1f} °C, {100 * rh_out:.1f} % relative humidity) "
-                    f"holds at least {100 * X_eq:.2f} % by the GAB isotherm of {self.isotherm.name}",
+                    f"{holds} by the GAB isotherm of {self.isotherm.name}",
                     key_prod, hint="raise the moisture target, or lower the exhaust humidity (more or hotter "
                                    "air, a higher outlet temperature, or a further drying stage)"))
         return out
@@ -399,12 +402,6 @@ class ConvectiveDryer(UnitOperation):
             x_feed=values["feed_solids"], x_prod=x_prod, t_prod=values["product_temperature"],
             t_out=values["outlet_temperature"], rh_out=values["outlet_relative_humidity"],
             t_air_in=values["inlet_temperature"])
-        if self.isotherm is not None and "equilibrium_moisture_dry_basis" in values:
-            x_eq = values["equilibrium_moisture_dry_basis"]
-            if not (math.isfinite(x_eq) and x_eq >= 0.0) and values["outlet_relative_humidity"] <= 1.0:
-                found.append(self._error("the exhaust air is beyond the pole of the product's GAB isotherm: "
-                                         "no finite equilibrium moisture; the moisture target is unreachable",
-                                         "product_moisture"))
         return [str(err) for err in found]
 
     # -- initial guess ------------------------------------------------------

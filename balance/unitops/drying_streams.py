@@ -159,6 +159,20 @@ def fuel_enthalpy(heating_value, water_yield, T):
             + CP_FUEL * (T - t_ref))
 
 
+def _once(state, compute):
+    """The specific enthalpy of a stream state, built once per state object.
+
+    Units ask a stream for its enthalpy several times while they write
+    their equations; the expression of a powder (a quadrature of the
+    liquor's heat capacity) is costly to build, so it is kept on the state.
+    """
+    cached = getattr(state, "_drying_enthalpy", None)
+    if cached is None or cached[0] is not state.values:
+        cached = (state.values, compute(state))
+        state._drying_enthalpy = cached
+    return cached[1]
+
+
 def _powder_state_enthalpy(state):
     if state.liquor is None:
         raise InputError(f"powder stream '{state.name}' cannot be traced back to a feed liquor "
@@ -169,14 +183,14 @@ def _powder_state_enthalpy(state):
 register_stream_kind(StreamKind(
     "air", (AIR_FLOW, HUMIDITY, AIR_TEMPERATURE),
     "moist air: dry-air flow, humidity ratio, dry-bulb temperature",
-    specific_enthalpy=lambda s: humid_air.enthalpy(s["temperature"], s["humidity"]),
+    specific_enthalpy=lambda s: _once(s, lambda t: humid_air.enthalpy(t["temperature"], t["humidity"])),
     water=lambda s: s["flow"] * s["humidity"],
     dry_air=lambda s: s["flow"]))
 
 register_stream_kind(StreamKind(
     "powder", (POWDER_FLOW, POWDER_SOLIDS, POWDER_TEMPERATURE),
     "wet solids (powder, granules) with the solids model of their liquor",
-    specific_enthalpy=_powder_state_enthalpy,
+    specific_enthalpy=lambda s: _once(s, _powder_state_enthalpy),
     water=lambda s: s["flow"] * (1 - s["solids"]),
     solids=lambda s: s["flow"] * s["solids"]))
 
