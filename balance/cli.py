@@ -176,6 +176,7 @@ def cmd_sweep(args) -> int:
     progress = sys.stderr.isatty() if args.progress is None else args.progress
     result = sweep.run_sweep(source, parameters, sampling=sampling, samples=samples, seed=seed,
                              outputs=args.output_figure or (), key_figures=not args.no_key_figures,
+                             checks="exact" if args.exact_checks else "screen",
                              executor="dask" if args.dask_scheduler else "auto", workers=args.workers,
                              dask_scheduler=args.dask_scheduler, chunk_size=args.chunk_size,
                              compile=args.compile, progress=progress)
@@ -301,7 +302,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.set_defaults(func=cmd_compare)
 
     p = sub.add_parser("sweep", help="solve many cases over ranges or lists of fixed values; one row per case "
-                                     "(docs/sweeps.md)")
+                                     "(docs/sweeps.md)",
+                       description="FILE is a flowsheet file, or a sweep file with a [sweep] table naming one.")
     common(p)
     p.add_argument("--vary", action="append", metavar="PATH=SPEC",
                    help="a fixed value to vary: 'feed.flow=15 t/h:25 t/h:11' (11 points from 15 to 25 t/h) or "
@@ -318,9 +320,12 @@ def build_parser() -> argparse.ArgumentParser:
                    help="add a column: a variable (E1.area, V2.pressure) or unit figure (E2.driving_force)")
     p.add_argument("--no-key-figures", action="store_true",
                    help="leave out the key figures (much faster: they are computed case by case)")
+    p.add_argument("--exact-checks", action="store_true",
+                   help="run the result checks case by case instead of vectorised over each batch (slower; "
+                        "the same verdicts)")
     p.add_argument("--workers", type=int, metavar="N", help="local worker processes (default: all cores)")
     p.add_argument("--dask-scheduler", metavar="ADDRESS",
-                   help="run on a Dask cluster, e.g. tcp://10.0.0.5:8786 (needs dask[distributed])")
+                   help="run on a Dask cluster, e.g. tcp://scheduler-host:8786 (needs dask[distributed])")
     p.add_argument("--chunk-size", type=int, default=500, metavar="N", help="cases per batch (default 500)")
     p.add_argument("--compile", default="auto", choices=("auto", "always", "never"),
                    help="compile the batch Newton to C with the system compiler (auto: when it pays or is "
@@ -332,10 +337,10 @@ def build_parser() -> argparse.ArgumentParser:
 
     p = sub.add_parser("benchmark", help="measure build, solve and sweep times against a hand-written baseline "
                                          "(docs/benchmark.md)")
-    p.add_argument("--quick", action="store_true", help="small sizes and fewer repeats (about 20 s)")
+    p.add_argument("--quick", action="store_true", help="small sizes and fewer repeats (about 20-30 s)")
     p.add_argument("--part", action="append", metavar="NAME",
                    help="run only these parts (repeatable): three_effect, baseline, scaling, sweep, memory, "
-                        "cold_start")
+                        "cold_start, drying, variants, optimise")
     p.add_argument("--sizes", type=int, nargs="+", metavar="N",
                    help="numbers of effects for the scaling part (default 2 4 8 16 32 64)")
     p.add_argument("--sweep-cases", type=int, metavar="N", help="cases in the throughput sweeps")

@@ -44,8 +44,14 @@ def provides_figures(func):
     return func
 
 
+_LOADED = []
+
+
 def _load_providers() -> None:
-    """Import every ``*_figures`` module of this package, which registers its providers."""
+    """Import every ``*_figures`` module of this package, which registers its providers (once)."""
+    if _LOADED:
+        return
+    _LOADED.append(True)
     import importlib
     import pkgutil
 

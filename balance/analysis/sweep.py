@@ -70,7 +70,10 @@ import casadi as ca
 import numpy as np
 
 from balance.errors import InputError, SolveError
-from balance.solve.checks import RESIDUAL_LIMIT, check_values, overall_balances, range_warnings, worst_equations
+from balance.properties import water
+from balance.properties.validity import enforce
+from balance.solve.checks import (DRIVING_FORCE_FIGURES, RESIDUAL_LIMIT, check_values, overall_balances,
+                                  range_warnings, worst_equations)
 from balance.solve.feasibility import precheck
 from balance.solve.newton import TOLERANCE
 from balance.solve.result import Solution, StreamResult, UnitResult
@@ -84,6 +87,9 @@ BATCH_ITERATIONS = 8
 BATCH_STOP = 1e-10
 DEFAULT_CHUNK = 500
 TINY = 1e-200
+#: In a chunk checked by the vectorised screen, every AUDIT_EVERY-th accepted case is also checked exactly.
+AUDIT_EVERY = 50
+CHECKS = ("screen", "exact")
 STATUS_COLUMNS = ("converged", "status", "solved_by", "iterations", "residual", "reason", "warnings")
 
 
@@ -371,7 +377,14 @@ class BatchSolver:
             done = ca.if_else(done, 1, norm_k < BATCH_STOP)
             x = x_next
         x_si = x * dxm
-        figures = solver.evaluator.function(x_si, pm)
+        # after the Evaluator's figures: the saturation temperature at each vapour stream's pressure,
+        # for the vectorised "vapour above its dew point" check
+        self.vapour_streams = [name for name, state in model.states.items() if state.kind.name == "vapour"]
+        saturation = ca.Function("saturation", [model.x, model.p], [ca.vertcat(
+            *[ca.SX(water.saturation_temperature(model.states[name]["pressure"])) for name in self.vapour_streams]
+        ) if self.vapour_streams else ca.SX(0, 1)])
+        figures = ca.vertcat(solver.evaluator.function(x_si, pm), saturation(x_si, pm))
+        self.n_figures = len(solver.evaluator.keys) + len(self.vapour_streams)
         self.case = ca.Function("balance_batch_case", [xm, pm, dxm, drm], [x_si, figures, steps])
         self.compiled_library: str | None = None
         self._function = self.case
@@ -443,7 +456,8 @@ class BatchSolver:
     def run(self, x0: np.ndarray, p: np.ndarray, dx: np.ndarray, dr: np.ndarray):
         """Solve the cases in the columns of ``p`` from the columns of ``x0`` [SI].
 
-        Returns ``x`` (unknowns x cases), ``figures`` (Evaluator figures x
+        Returns ``x`` (unknowns x cases), ``figures`` (the Evaluator's
+        figures, then the saturation temperature of each vapour stream, x
         cases) and the Newton steps taken per case.
         """
         count = p.shape[1]
@@ -452,8 +466,7 @@ class BatchSolver:
         except RuntimeError:
             # a case made an operation fail: split the chunk until that case is found, and give it NaN
             if count == 1:
-                n, k = x0.shape[0], len(self.solver.evaluator.keys)
-                return np.full((n, 1), np.nan), np.full((k, 1), np.nan), np.zeros(1)
+                return np.full((x0.shape[0], 1), np.nan), np.full((self.n_figures, 1), np.nan), np.zeros(1)
             half = count // 2
             first = self.run(x0[:, :half], p[:, :half], dx, dr)
             second = self.run(x0[:, half:], p[:, half:], dx, dr)
@@ -495,6 +508,7 @@ class _Assembler:
                                [(q.name, index[("var", f"{name}.{q.name}")]) for q in unit.quantities()],
                                [(k, index[("unit", name, k)]) for k in model.reports[name]], kinds, fixed))
         self.values = [(v.path, index[("var", v.path)]) for v in model.variables]
+        self._prepare_screen(index, solver.evaluator.keys)
         notes = []
         for state in model.states.values():
             if state.liquor is not None and not getattr(state.liquor, "heat_of_dilution_included", False):
@@ -502,6 +516,83 @@ class _Assembler:
                 if note not in notes:
                     notes.append(note)
         self.notes = notes
+
+    def _prepare_screen(self, index: dict, keys: list) -> None:
+        """Row indices and limits for `screen`, read from the model as `check_values` and
+        `overall_balances` read them."""
+        model = self.model
+        fs = model.flowsheet
+        self.reference = model.reference_flow
+        self.var_rows = np.array([index[("var", v.path)] for v in model.variables], dtype=int)
+        kinds = [v.kind for v in model.variables]
+        self.is_flow = np.array([k == "mass_flow" for k in kinds])
+        self.is_fraction = np.array([k == "fraction" for k in kinds])
+        lower = np.array([v.lower for v in model.variables], dtype=float)
+        upper = np.array([v.upper for v in model.variables], dtype=float)
+        self.lower_limit = lower - 1e-9 * np.maximum(1.0, np.abs(lower))
+        self.upper_limit = upper + 1e-9 * np.maximum(1.0, np.abs(upper))
+        self.driving_rows = np.array([index[("unit", unit, name)] for unit, figures in model.reports.items()
+                                      for name in figures if name in DRIVING_FORCE_FIGURES], dtype=int)
+        n_keys = len(keys)
+        vapour = [name for name, state in model.states.items() if state.kind.name == "vapour"]
+        self.vapour_rows = np.array([[index[("var", f"{name}.{v}")] for name in vapour]
+                                     for v in ("temperature", "pressure", "flow")], dtype=int).reshape(3, -1)
+        self.saturation_rows = n_keys + np.arange(len(vapour), dtype=int)
+        sides = {k: ([], []) for k in ("water", "solids", "dry air", "energy")}
+        figure = {"water": "water_flow", "solids": "solids_flow", "dry air": "dry_air_flow", "energy": "enthalpy_flow"}
+        for stream in fs.streams:
+            source, target = fs.unit(stream.source), fs.unit(stream.target)
+            side = 0 if source.boundary == "source" else 1 if target.boundary == "sink" else None
+            if side is None:
+                continue
+            for name in sides:
+                sides[name][side].append(index[("stream", stream.name, figure[name])])
+        self.balance_rows = {k: (np.array(a, dtype=int), np.array(b, dtype=int)) for k, (a, b) in sides.items()}
+        self.external_rows = np.array([index[("external_power", u)] for u in model.external_power], dtype=int)
+        self.range_rows = [index[("range", i)] for i in range(len(model.range_checks))]
+
+    def warnings(self, column: np.ndarray) -> list[str]:
+        """The validity-range warnings of one case (as `range_warnings`) and the model's notes."""
+        numbers = [column[i] for i in self.range_rows]
+        return enforce(self.model.range_checks, numbers, "warn", self.model.flowsheet.file) + list(self.notes)
+
+    def screen(self, figures: np.ndarray) -> np.ndarray:
+        """Which cases pass every check of `check_values` and `overall_balances`, for all cases at once.
+
+        The same conditions as those two functions, on the columns of the
+        batch's figures. A case the screen rejects is run through the two
+        functions themselves for its messages; `solve_chunk` also runs them
+        on a sample of accepted cases and falls back to them if the two
+        ever disagree.
+        """
+        values = figures[self.var_rows, :]
+        with np.errstate(invalid="ignore"):
+            ok = np.all(np.isfinite(values), axis=0)
+            flows, fractions, others = values[self.is_flow], values[self.is_fraction], values[~self.is_flow]
+            ok &= ~np.any(flows < -1e-9 * self.reference, axis=0)
+            ok &= np.all((fractions >= -1e-9) & (fractions <= 1 + 1e-9), axis=0)
+            ok &= ~np.any((others < self.lower_limit[~self.is_flow, None])
+                          | (others > self.upper_limit[~self.is_flow, None]), axis=0)
+            if self.driving_rows.size:
+                ok &= np.all(figures[self.driving_rows, :] > 0, axis=0)
+            if self.saturation_rows.size:
+                t, p, flow = (figures[rows, :] for rows in self.vapour_rows)
+                colder = (flow > 1e-9 * self.reference) & (p > 0) & (t < figures[self.saturation_rows, :] - 0.01)
+                ok &= ~np.any(colder, axis=0)
+            external = (figures[self.external_rows, :].sum(axis=0) if self.external_rows.size
+                        else np.zeros(figures.shape[1]))
+            for name, (into_rows, out_rows) in self.balance_rows.items():
+                into = figures[into_rows, :].sum(axis=0)
+                out_of = figures[out_rows, :].sum(axis=0)
+                if name == "energy":
+                    into = into + np.where(external >= 0, external, 0.0)
+                    out_of = out_of - np.where(external >= 0, 0.0, external)
+                scale = np.maximum(np.abs(into), np.abs(out_of))
+                if name == "energy":
+                    scale = np.maximum(scale, self.reference * 2.0e6)
+                closure = np.where(scale > 0, (into - out_of) / np.where(scale > 0, scale, 1.0), 0.0)
+                ok &= np.abs(closure) < 1e-6
+        return ok
 
     def residual_norms(self, figures: np.ndarray) -> np.ndarray:
         scaled = np.abs(figures[self.residual_rows, :] / self.residual_scale[:, None])
@@ -683,6 +774,7 @@ class ChunkResult:
     seconds: float
     batch_seconds: float
     counts: dict[str, int] = field(default_factory=dict)
+    notes: list[str] = field(default_factory=list)
 
 
 @dataclass(frozen=True)
@@ -693,6 +785,7 @@ class ChunkPlan:
     scale: np.ndarray
     figure_names: tuple[str, ...]
     outputs: tuple[str, ...]
+    checks: str = "screen"
 
 
 def _reason(solution: Solution) -> str:
@@ -735,23 +828,50 @@ def solve_chunk(engine: CompiledSweepModel, cases: np.ndarray, start: int, plan:
     solved_x: dict[int, np.ndarray] = {}
     counts = {"batch": 0, "batch from neighbour": 0, "full solver": 0, "failed": 0}
 
+    notes: list[str] = []
+    exact = bool(names) or plan.checks == "exact"
+
+    def accept_exact(i, label) -> bool:
+        checked = engine.assembler.check(figures[:, i], float(norms[i]))
+        if checked[1]:
+            return False  # failed a check: the full solver decides
+        values = []
+        if names:
+            solution = engine.assembler.solution(x[:, i], figures[:, i], float(norms[i]), int(steps[i]),
+                                                 "batch newton", checked)
+            values = _key_figure_values(solution, names)
+        outcomes[i] = CaseOutcome(True, "converged", label(i), int(steps[i]), float(norms[i]), "",
+                                  "; ".join(checked[3]), values, figures[output_rows, i].tolist())
+        return True
+
     def accept(indices, label) -> int:
+        nonlocal exact
+        indices = [i for i in indices if outcomes[i] is None and norms[i] < TOLERANCE]
+        passed = engine.assembler.screen(figures[:, indices]) if indices and not exact else None
         accepted = 0
-        for i in indices:
-            if outcomes[i] is not None or not norms[i] < TOLERANCE:
-                continue
-            checked = engine.assembler.check(figures[:, i], float(norms[i]))
-            if checked[1]:
-                continue  # failed a check: the full solver decides
-            values = []
-            if names:
-                solution = engine.assembler.solution(x[:, i], figures[:, i], float(norms[i]), int(steps[i]),
-                                                     "batch newton", checked)
-                values = _key_figure_values(solution, names)
-            outcomes[i] = CaseOutcome(True, "converged", label(i), int(steps[i]), float(norms[i]), "",
-                                      "; ".join(checked[3]), values, figures[output_rows, i].tolist())
-            solved_x[i] = x[:, i].copy()
-            accepted += 1
+        for j, i in enumerate(indices):
+            if exact:
+                ok = accept_exact(i, label)
+            elif not passed[j]:
+                ok = accept_exact(i, label)   # the real checks give the messages (and the last word)
+                if ok:
+                    notes.append("the vectorised checks rejected a case the exact checks accept; "
+                                 "the exact checks were used")
+            else:
+                if accepted % AUDIT_EVERY == 0 and engine.assembler.check(figures[:, i], float(norms[i]))[1]:
+                    notes.append("the vectorised checks accepted a case the exact checks reject; "
+                                 "the exact checks were used for the rest of the chunk")
+                    exact = True
+                    ok = accept_exact(i, label)
+                else:
+                    column = figures[:, i]
+                    outcomes[i] = CaseOutcome(True, "converged", label(i), int(steps[i]), float(norms[i]), "",
+                                              "; ".join(engine.assembler.warnings(column)), [],
+                                              column[output_rows].tolist())
+                    ok = True
+            if ok:
+                solved_x[i] = x[:, i].copy()
+                accepted += 1
         return accepted
 
     counts["batch"] = accept(range(count), lambda i: "batch newton from the base")
@@ -797,7 +917,8 @@ def solve_chunk(engine: CompiledSweepModel, cases: np.ndarray, start: int, plan:
             counts["full solver"] += 1
         else:
             counts["failed"] += 1
-    return ChunkResult(start, outcomes, time.perf_counter() - started, batch_seconds, counts)
+    return ChunkResult(start, outcomes, time.perf_counter() - started, batch_seconds, counts,
+                       sorted(set(notes)))
 
 
 # -- executors --------------------------------------------------------------------------------
@@ -1079,7 +1200,7 @@ def _decide_compile(engine: CompiledSweepModel, policy: str, n_cases: int, notes
 
 def run_sweep(flowsheet, parameters: Sequence[Parameter], *, sampling: str = "grid",
               samples: int | None = None, seed: int = 0, cases: np.ndarray | None = None,
-              outputs: Sequence[str] = (), key_figures: bool = True,
+              outputs: Sequence[str] = (), key_figures: bool = True, checks: str = "screen",
               executor: str = "auto", workers: int | None = None, dask_scheduler: str | None = None,
               dask_client: Any = None, chunk_size: int = DEFAULT_CHUNK, compile: str = "auto",
               iterations: int = BATCH_ITERATIONS, progress: bool = False) -> SweepResult:
@@ -1102,13 +1223,20 @@ def run_sweep(flowsheet, parameters: Sequence[Parameter], *, sampling: str = "gr
     key_figures : bool
         Include the key figures (computed per case in Python, the slowest
         part of a fast sweep; see docs/sweeps.md).
+    checks : {'screen', 'exact'}
+        How a case the batch solved is checked. ``exact``: `check_values`
+        and `overall_balances` on every case. ``screen``: the same
+        conditions vectorised over the chunk; a rejected case and every
+        `AUDIT_EVERY`-th accepted one still go through the two functions,
+        which have the last word. With key figures the checks are always
+        exact (a `Solution` is built anyway).
     executor : {'auto', 'serial', 'processes', 'dask'}
         ``auto``: Dask when a scheduler or client is given; else local
         processes when more than one worker and more than one chunk; else serial.
     workers : int, optional
         Local worker processes (default: the number of cores).
     dask_scheduler : str, optional
-        Address of a running Dask scheduler (``tcp://host:8786``).
+        Address of a running Dask scheduler (``tcp://scheduler-host:8786``).
     dask_client : distributed.Client, optional
         An existing client, instead of an address.
     chunk_size : int
@@ -1135,6 +1263,8 @@ def run_sweep(flowsheet, parameters: Sequence[Parameter], *, sampling: str = "gr
     notes: list[str] = []
     if executor not in EXECUTORS:
         raise InputError(f"unknown executor {executor!r}; valid: {', '.join(EXECUTORS)}", key="executor")
+    if checks not in CHECKS:
+        raise InputError(f"unknown checks {checks!r}; valid: {', '.join(CHECKS)}", key="checks")
     if isinstance(flowsheet, Flowsheet):
         fs = flowsheet
         try:
@@ -1190,7 +1320,7 @@ def run_sweep(flowsheet, parameters: Sequence[Parameter], *, sampling: str = "gr
     compile_seconds = _decide_compile(engine, compile, n_cases, notes)
     library = engine.batch.compiled_library
     span = np.ptp(cases, axis=0)
-    plan = ChunkPlan(base_x, np.where(span > 0, span, 1.0), names, outputs)
+    plan = ChunkPlan(base_x, np.where(span > 0, span, 1.0), names, outputs, checks)
     chunks = [(start, cases[start:start + chunk_size]) for start in range(0, n_cases, chunk_size)]
 
     outcomes: list[CaseOutcome | None] = [None] * n_cases
@@ -1202,6 +1332,9 @@ def run_sweep(flowsheet, parameters: Sequence[Parameter], *, sampling: str = "gr
             outcomes[result.start + j] = outcome
         for k, v in result.counts.items():
             counts[k] = counts.get(k, 0) + v
+        for note in result.notes:
+            if note not in notes:
+                notes.append(note)
         bar.update(len(result.outcomes))
 
     global _FORKED

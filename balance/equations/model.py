@@ -238,13 +238,12 @@ def compile_flowsheet(fs: Flowsheet, require_square: bool = True) -> Model:
     checks: list[Any] = []
     reports: dict[str, dict[str, tuple[Any, str]]] = {}
     external: dict[str, Any] = {}
+    ports_of: dict[str, dict[str, StreamState]] = {name: {} for name in fs.units}
+    for stream in fs.streams:
+        ports_of[stream.source][stream.source_port] = states[stream.name]
+        ports_of[stream.target][stream.target_port] = states[stream.name]
     for name, unit in fs.units.items():
-        ports = {}
-        for stream in fs.streams:
-            if stream.source == name:
-                ports[stream.source_port] = states[stream.name]
-            if stream.target == name:
-                ports[stream.target_port] = states[stream.name]
+        ports = ports_of[name]
         writer = _UnitWriter(unit, ports, quantity_symbols[name], equations, checks)
         unit.equations(writer)
         reports[name] = {k: v for k, v in unit.reported(writer).items() if v[0] is not None}

@@ -48,7 +48,7 @@ from balance.unitops.streams import STREAM_KINDS
 
 SOLVE_WORDS = ("solve", "free")
 TOP_LEVEL = ("flowsheet", "liquors", "units", "streams", "specification", "economics", "limits",
-             "variants", "optimise", "capacity")
+             "variants", "optimise", "capacity", "sweep")
 
 
 def load(path: str | os.PathLike) -> Flowsheet:
@@ -89,7 +89,7 @@ def from_dict(data: dict, file: str | None = None) -> Flowsheet:
         from balance.properties import humid_air
         altitude = quantities.parse(head["site_altitude"], "length", file=file, key="site_altitude")
         fs.site["pressure"] = float(humid_air.pressure_at_altitude(altitude))
-    for key in ("economics", "limits", "variants", "optimise", "capacity"):
+    for key in ("economics", "limits", "variants", "optimise", "capacity", "sweep"):
         if key in data:
             fs.extras[key] = data[key]
 

@@ -179,8 +179,17 @@ class Flowsheet:
 
     @property
     def streams(self) -> list[Stream]:
-        return [Stream(key, u, data["source_port"], v, data["target_port"], data["kind"])
-                for u, v, key, data in self.graph.edges(keys=True, data=True)]
+        """All streams, in the order they were connected (cached until the graph changes)."""
+        signature = (self.graph.number_of_nodes(), self.graph.number_of_edges())
+        if getattr(self, "_streams_cache", (None, None))[0] != signature:
+            streams = [Stream(key, u, data["source_port"], v, data["target_port"], data["kind"])
+                       for u, v, key, data in self.graph.edges(keys=True, data=True)]
+            ports = {}
+            for stream in streams:
+                ports[(stream.source, stream.source_port)] = stream
+                ports[(stream.target, stream.target_port)] = stream
+            self._streams_cache = (signature, streams, ports)
+        return self._streams_cache[1]
 
     def stream(self, name: str) -> Stream:
         for stream in self.streams:
@@ -190,10 +199,8 @@ class Flowsheet:
 
     def stream_at(self, unit: str, port: str) -> Stream | None:
         """The stream attached to a unit's port, or None."""
-        for stream in self.streams:
-            if (stream.source, stream.source_port) == (unit, port) or (stream.target, stream.target_port) == (unit, port):
-                return stream
-        return None
+        self.streams  # refresh the cache
+        return self._streams_cache[2].get((unit, port))
 
     def complete(self) -> None:
         """Check every required port is connected, end unconnected optional

@@ -150,7 +150,14 @@ def initial_guess(model) -> dict[str, float]:
         t_cold = (max(cw) + 15.0) if cw else DEFAULT_COLD_TEMPERATURE
     if t_top is None:
         t_top = max(DEFAULT_STEAM_TEMPERATURE, t_cold + 10.0 * n_levels)
-    step = (t_top - t_cold) / max(n_levels, 1)
+    # the span is shared between the levels in proportion to 1/U, as equal duties would share it
+    resistance = {}
+    for name, lvl in levels.items():
+        u_fixed = values.get(f"{name}.U") if f"{name}.U" in locked else None
+        resistance.setdefault(lvl, []).append(1.0 / u_fixed if u_fixed else 1.0 / 1500.0)
+    weights = [np.mean(resistance.get(lvl, [1.0 / 1500.0])) for lvl in range(1, n_levels + 1)]
+    shares = np.array(weights) / max(sum(weights), 1e-30) * (t_top - t_cold)
+    level_temperature = {lvl: t_cold + float(np.sum(shares[:lvl - 1])) for lvl in range(1, n_levels + 1)}
     hints_by_unit: dict[str, dict[str, Any]] = {}
     for name, unit in fs.units.items():
         hints: dict[str, Any] = {"fixed": {}, "steam_flow": evaporation / n_effects / 0.95,
@@ -160,7 +167,7 @@ def initial_guess(model) -> dict[str, float]:
             if path in locked:
                 hints["fixed"][q.name] = values[path]
         if name in levels:
-            t_b = t_cold + (levels[name] - 1) * step
+            t_b = level_temperature[levels[name]]
             if "pressure" in hints["fixed"]:
                 t_b = float(water.saturation_temperature(hints["fixed"]["pressure"]))
             hints["boiling_temperature"] = t_b

@@ -54,18 +54,21 @@ class CompiledSystem:
         if hasattr(ca, "cse") and g.numel():
             g = ca.cse(g)
         self.g_function = ca.Function("g", [model.x, model.p], [g])
-        n, m = model.n_unknowns, model.p.numel()
-        xs = ca.MX.sym("xs", n)
-        p = ca.MX.sym("p", m)
-        dx = ca.MX.sym("dx", n)
-        dr = ca.MX.sym("dr", model.n_equations)
-        gs = self.g_function(xs * dx, p) / dr
-        jac = ca.jacobian(gs, xs)
-        step = -ca.solve(jac, gs, "csparse")
-        self.residual = ca.Function("residual", [xs, p, dx, dr], [gs])
-        self.step = ca.Function("newton_step", [xs, p, dx, dr], [gs, step])
-        self.jacobian = ca.Function("jacobian", [xs, p, dx, dr], [jac])
-        self._xs, self._p, self._dx, self._dr, self._gs = xs, p, dx, dr, gs
+        n, m, n_g = model.n_unknowns, model.p.numel(), model.n_equations
+        # residual and sparse Jacobian in SX (fast, compact); only the linear solve is MX
+        xs_sx, p_sx = ca.SX.sym("xs", n), ca.SX.sym("p", m)
+        dx_sx, dr_sx = ca.SX.sym("dx", n), ca.SX.sym("dr", n_g)
+        gs_sx = self.g_function(xs_sx * dx_sx, p_sx) / dr_sx
+        jac_sx = ca.jacobian(gs_sx, xs_sx)
+        self.residual = ca.Function("residual", [xs_sx, p_sx, dx_sx, dr_sx], [gs_sx])
+        self.jacobian = ca.Function("jacobian", [xs_sx, p_sx, dx_sx, dr_sx], [jac_sx])
+        residual_and_jacobian = ca.Function("residual_and_jacobian", [xs_sx, p_sx, dx_sx, dr_sx],
+                                            [gs_sx, jac_sx])
+        xs, p = ca.MX.sym("xs", n), ca.MX.sym("p", m)
+        dx, dr = ca.MX.sym("dx", n), ca.MX.sym("dr", n_g)
+        gs, jac = residual_and_jacobian(xs, p, dx, dr)
+        self.step = ca.Function("newton_step", [xs, p, dx, dr], [gs, -ca.solve(jac, gs, "csparse")])
+        self._xs, self._p, self._dx, self._dr, self._gs = xs_sx, p_sx, dx_sx, dr_sx, gs_sx
         self._ipopt = None
         self.lower = np.array([v.lower for v in model.unknowns], dtype=float)
         self.upper = np.array([v.upper for v in model.unknowns], dtype=float)
@@ -112,6 +115,7 @@ def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float 
     message = ""
     watchdog = None            # [point, merit, step, iterations left] while a watchdog step is on trial
     watchdog_allowed = True
+    watchdog_failures = 0      # after two failed watchdog steps the line search stays monotone
     for iteration in range(max_iter + 1):
         gs = step = None
         try:
@@ -131,6 +135,7 @@ def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float 
             elif not ok or watchdog[3] <= 1:
                 xs, merit, step, _ = watchdog                     # back to where it started
                 watchdog, watchdog_allowed, ok, message = None, False, True, ""
+                watchdog_failures += 1
             else:
                 watchdog[3] -= 1
         if not ok:
@@ -159,7 +164,7 @@ def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float 
             message = "the line search found no step that reduces the residual"
             break
         if watchdog is None:
-            watchdog_allowed = True
+            watchdog_allowed = watchdog_failures < 2
         xs = trial
     return RawSolution(xs * dx, False, "newton", len(history) - 1, history[-1] if history else np.inf,
                        time.perf_counter() - start, message, history)

@@ -82,6 +82,12 @@ class SteamSupply(UnitOperation):
         streams = {"out": {}}
         if "steam_flow" in hints:
             streams["out"]["flow"] = hints["steam_flow"]
+        fixed = hints.get("fixed_ports", {}).get("out", {})
+        superheat = hints.get("fixed", {}).get("superheat", 0.0)
+        if "pressure" in fixed and "temperature" not in fixed:
+            streams["out"]["temperature"] = float(water.saturation_temperature(fixed["pressure"])) + superheat
+        elif "temperature" in fixed and "pressure" not in fixed:
+            streams["out"]["pressure"] = float(water.saturation_pressure(fixed["temperature"] - superheat))
         return Guess(streams=streams)
 
 
