@@ -116,12 +116,19 @@ def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float 
     watchdog = None            # [point, merit, step, iterations left] while a watchdog step is on trial
     watchdog_allowed = True
     watchdog_failures = 0      # after two failed watchdog steps the line search stays monotone
+    previous = None            # the last accepted point, to step back to from a singular Jacobian
     for iteration in range(max_iter + 1):
         gs = step = None
-        try:
-            gs, step = (np.asarray(v, dtype=float).ravel() for v in system.step(xs, p, dx, dr))
-        except RuntimeError as exc:  # CasADi's sparse solve on a numerically singular Jacobian
-            message = f"the Jacobian is singular at the current point ({str(exc).splitlines()[0][:120]})"
+        for _retreat in range(6):
+            try:
+                gs, step = (np.asarray(v, dtype=float).ravel() for v in system.step(xs, p, dx, dr))
+                message = ""
+                break
+            except RuntimeError as exc:  # CasADi's sparse solve on a numerically singular Jacobian
+                message = f"the Jacobian is singular at the current point ({str(exc).splitlines()[0][:120]})"
+                if previous is None or watchdog is not None:
+                    break
+                xs = previous + 0.5 * (xs - previous)     # step back halfway towards the last good point
         norm = float(np.max(np.abs(gs))) if gs is not None and gs.size else (0.0 if gs is not None else np.inf)
         history.append(norm)
         if norm < tol:
@@ -165,6 +172,7 @@ def newton(system: CompiledSystem, x0: np.ndarray, p: np.ndarray, *, tol: float 
             break
         if watchdog is None:
             watchdog_allowed = watchdog_failures < 2
+        previous = xs
         xs = trial
     return RawSolution(xs * dx, False, "newton", len(history) - 1, history[-1] if history else np.inf,
                        time.perf_counter() - start, message, history)
