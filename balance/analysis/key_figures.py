@@ -18,7 +18,11 @@ Definitions (all per unit time at steady state):
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass
+
+import casadi as ca
+import numpy as np
 
 from balance.properties import water
 
@@ -67,49 +71,183 @@ def key_figures(solution) -> dict[str, KeyFigure]:
     Figures come from providers registered with `provides_figures`: this
     module's evaporation figures first, then those of every
     ``balance/analysis/*_figures.py`` module (drying, energy and cost, ...).
+
+    ``solution`` is a `balance.solve.Solution` or any object with its
+    ``flowsheet``, ``streams`` and ``units`` (all the providers read), such
+    as the light per-case view a sweep builds.
     """
     _load_providers()
     out: dict[str, KeyFigure] = {}
-    for provider in PROVIDERS:
-        for figure in provider(solution):
-            out[figure.name] = figure
+    # while the providers run, the solution does not change: what they share is worked out once
+    memo = _MEMO.__dict__
+    memo.update(solution=solution, evaporation=None, wiring=None)
+    try:
+        for provider in PROVIDERS:
+            for figure in provider(solution):
+                out[figure.name] = figure
+    finally:
+        memo.update(solution=None, evaporation=None, wiring=None)
     return out
 
 
-@provides_figures
-def evaporation_figures(solution) -> list[KeyFigure]:
-    """Water removed, live steam, economy, areas and cooling water."""
+#: While `key_figures` runs on a solution (per thread): the solution, its evaporation figures and its
+#: wiring (see `structure_cache`), once worked out.
+_MEMO = threading.local()
+
+# -- what the providers read from the flowsheet's structure, once per structure ------------------
+
+_STRUCTURES: dict = {}
+
+
+def structure_cache(solution, name: str, build):
+    """``build(flowsheet, solution)`` computed once per flowsheet structure and kept.
+
+    A provider's reading of the topology (which streams are feeds, steam,
+    condensate, ...) depends only on the flowsheet's units and streams, not
+    on the numbers; a sweep asks for it thousands of times. It is kept for
+    the flowsheet object with the names of the solution's streams and units;
+    a hit is used only when every stream's (kind, source, target) and every
+    unit's type are still those it was built for, so a flowsheet changed in
+    place is read again.
+    """
     fs = solution.flowsheet
-    streams = solution.streams
-    units = solution.units
-    feeds_water = feeds_solids = feed_flow = 0.0
-    product_water = product_flow = product_solids = 0.0
-    steam = steam_heat = cooling = 0.0
-    for s in streams.values():
+    streams, units = solution.streams, solution.units
+    key = (name, id(fs), tuple(streams), tuple(units))
+    hit = _STRUCTURES.get(key)
+    if hit is not None and hit[0] is fs and _wiring(solution) == hit[1]:
+        return hit[2]
+    if len(_STRUCTURES) > 64:
+        _STRUCTURES.clear()
+    value = build(fs, solution)
+    _STRUCTURES[key] = (fs, _wiring(solution), value)
+    return value
+
+
+def _wiring(solution) -> tuple:
+    """Every stream's (kind, source, target) and every unit's type: once per `key_figures` call."""
+    memo = _MEMO.__dict__
+    current = memo.get("solution") is solution
+    if current and memo.get("wiring") is not None:
+        return memo["wiring"]
+    wiring = (tuple([(s.kind, s.source, s.target) for s in solution.streams.values()]),
+              tuple([u.type_name for u in solution.units.values()]))
+    if current:
+        memo["wiring"] = wiring
+    return wiring
+
+
+class ScalarFunction:
+    """A CasADi function of scalar inputs and one scalar output, called with Python floats.
+
+    Evaluates through the function's buffer (`casadi.Function.buffer`, CasADi
+    3.6 and later): about 5 µs a call instead of about 17 µs through the
+    ordinary call, which converts every argument to a matrix. A lock keeps
+    calls from threads apart; without a buffer it falls back to the
+    ordinary call.
+    """
+
+    def __init__(self, function: "ca.Function"):
+        self.function = function
+        self._lock = threading.Lock()
+        self._inputs = [np.zeros(1) for _ in range(function.n_in())]
+        self._output = np.zeros(1)
+        try:
+            self._buffer, self._trigger = function.buffer()
+        except AttributeError:      # CasADi before 3.6
+            self._buffer = None
+            return
+        for i, a in enumerate(self._inputs):
+            self._buffer.set_arg(i, memoryview(a))
+        self._buffer.set_res(0, memoryview(self._output))
+
+    def __call__(self, *args: float) -> float:
+        if self._buffer is None:
+            return float(self.function(*args))
+        with self._lock:
+            for a, v in zip(self._inputs, args):
+                a[0] = v
+            self._trigger()
+            return float(self._output[0])
+
+
+_CONDENSING = []
+
+
+def condensing_enthalpy(pressure: float) -> float:
+    """Enthalpy of saturated liquid water at ``pressure`` [J/kg]: h'(T_sat(p)) of IAPWS-IF97.
+
+    The same `balance.properties.water.saturation_temperature` and
+    `~balance.properties.water.liquid_enthalpy` expressions, compiled once
+    into a CasADi function (about twice as fast as the Python-float call,
+    identical to round-off).
+
+    Parameters
+    ----------
+    pressure : float
+        Pressure [Pa], within the validity of IF97 region 1 saturation (611.2 Pa to 16.5 MPa).
+
+    Examples
+    --------
+    >>> round(condensing_enthalpy(101325.0) / 1000.0, 2)   # IAPWS-IF97 (CoolProp): 418.99 kJ/kg at 99.974 °C
+    418.99
+    """
+    if not _CONDENSING:
+        p = ca.SX.sym("p")
+        _CONDENSING.append(ScalarFunction(ca.Function(
+            "condensing_enthalpy", [p], [water.liquid_enthalpy(water.saturation_temperature(p))], {"cse": True})))
+    return _CONDENSING[0](pressure)
+
+
+def _evaporation_structure(fs, solution):
+    """Per stream: (name, is feed, is product, steam sign or None, is cooling water)."""
+    out = []
+    for s in solution.streams.values():
         source, target = fs.unit(s.source), fs.unit(s.target)
-        if s.kind in PRODUCT_KINDS and source.boundary == "source":
-            feeds_water += s.water_flow
-            feeds_solids += s.solids_flow
-            feed_flow += s.values["flow"]
-        if s.kind in PRODUCT_KINDS and target.boundary == "sink":
-            product_water += s.water_flow
-            product_flow += s.values["flow"]
-            product_solids += s.solids_flow
+        feed = s.kind in PRODUCT_KINDS and source.boundary == "source"
+        product = s.kind in PRODUCT_KINDS and target.boundary == "sink"
+        sign = None
         if source.type_name == "steam_supply" or (s.kind == "vapour" and getattr(target, "outside_cascade", False)):
             # live steam in, less the steam that air heaters and dryers take (counted by the drying figures)
             sign = 1.0 if source.type_name == "steam_supply" else -1.0
             if source.type_name == "steam_supply" and getattr(target, "outside_cascade", False):
                 sign = 0.0
+        out.append((s.name, feed, product, sign, source.type_name == "cooling_water"))
+    dryers = [n for n, u in fs.units.items() if getattr(u, "dries", False)]
+    return out, dryers
+
+
+@provides_figures
+def evaporation_figures(solution) -> list[KeyFigure]:
+    """Water removed, live steam, economy, areas and cooling water."""
+    memo = _MEMO.__dict__
+    current = memo.get("solution") is solution
+    if current and memo.get("evaporation") is not None:
+        return list(memo["evaporation"])
+    streams = solution.streams
+    units = solution.units
+    feeds_water = feeds_solids = feed_flow = 0.0
+    product_water = product_flow = product_solids = 0.0
+    steam = steam_heat = cooling = 0.0
+    classified, dryers = structure_cache(solution, "evaporation", _evaporation_structure)
+    for name, feed, product, sign, cooling_water in classified:
+        s = streams[name]
+        if feed:
+            feeds_water += s.water_flow
+            feeds_solids += s.solids_flow
+            feed_flow += s.values["flow"]
+        if product:
+            product_water += s.water_flow
+            product_flow += s.values["flow"]
+            product_solids += s.solids_flow
+        if sign is not None:
             flow = s.values["flow"]
             steam += sign * flow
-            t_sat = float(water.saturation_temperature(s.values["pressure"]))
-            steam_heat += sign * flow * (s.specific_enthalpy - float(water.liquid_enthalpy(t_sat)))
-        if source.type_name == "cooling_water":
+            steam_heat += sign * flow * (s.specific_enthalpy - condensing_enthalpy(s.values["pressure"]))
+        if cooling_water:
             cooling += s.values["flow"]
     evaporated = feeds_water - product_water
     # in a line with dryers, economy and heat per kg water belong to the evaporators alone
-    dryer_water = sum(units[n].figures.get("evaporation", 0.0) for n, u in fs.units.items()
-                      if getattr(u, "dries", False) and n in units)
+    dryer_water = sum(units[n].figures.get("evaporation", 0.0) for n in dryers if n in units)
     by_steam = evaporated - dryer_water
     prefix = "evaporators: " if dryer_water else ""
     figures = [
@@ -144,4 +282,6 @@ def evaporation_figures(solution) -> list[KeyFigure]:
         KeyFigure("cooling_water_per_water", "cooling water per kg water evaporated",
                   cooling / evaporated if evaporated > 0 else float("nan"), "ratio"),
     ]
+    if current:
+        memo["evaporation"] = tuple(figures)
     return figures

@@ -77,7 +77,8 @@ class Flowsheet:
         self.title = title
         self.description = description
         self.file = file
-        self.graph = nx.MultiDiGraph()
+        self.graph = nx.MultiDiGraph()   # read it freely; change it through add_unit and connect
+        self._version = 0
         self.liquors: dict[str, Any] = {}
         self.fixed: dict[str, float] = {}
         self.freed: set[str] = set()
@@ -108,6 +109,7 @@ class Flowsheet:
             raise InputError("unit names must be non-empty and contain no spaces, dots, ':' or '>'",
                              file=self.file, unit=unit.name)
         self.graph.add_node(unit.name, unit=unit)
+        self._version = getattr(self, "_version", 0) + 1
         self.given_keys.setdefault(unit.name, set())
         return unit
 
@@ -155,6 +157,7 @@ class Flowsheet:
         if "any" not in (src.kind, dst.kind) and src.kind != dst.kind:
             raise PortError(f"stream '{name}' joins a {src.kind} outlet ({source}) to a {dst.kind} inlet "
                             f"({target})", file=self.file, unit=dst_unit, key=dst_port)
+        self._version = getattr(self, "_version", 0) + 1
         self.graph.add_edge(src_unit, dst_unit, key=name, source_port=src_port, target_port=dst_port,
                             kind=kind)
         return name
@@ -180,7 +183,8 @@ class Flowsheet:
     @property
     def streams(self) -> list[Stream]:
         """All streams, in the order they were connected (cached until the graph changes)."""
-        signature = (self.graph.number_of_nodes(), self.graph.number_of_edges())
+        # changes go through add_unit, connect and complete, which bump the version
+        signature = (len(self.graph), getattr(self, "_version", 0))
         if getattr(self, "_streams_cache", (None, None))[0] != signature:
             streams = [Stream(key, u, data["source_port"], v, data["target_port"], data["kind"])
                        for u, v, key, data in self.graph.edges(keys=True, data=True)]
@@ -216,6 +220,7 @@ class Flowsheet:
                     continue
                 if port.optional and port.direction == "out":
                     sink = Outlet(f"{IMPLICIT_OUTLET_PREFIX}{name}.{port.name}", {"stream": port.kind})
+                    self._version = getattr(self, "_version", 0) + 1
                     self.graph.add_node(sink.name, unit=sink)
                     self.graph.add_edge(name, sink.name, key=f"{name}.{port.name}", source_port=port.name,
                                         target_port="in", kind=port.kind)

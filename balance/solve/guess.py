@@ -1,14 +1,20 @@
 """The automatic initial guess: an estimate of every unknown from plant reasoning.
 
 1. The total evaporation follows from the feed and the target solids
-   (E = F (1 - x_F / x_P)), and is split evenly between the effects.
+   (E = F (1 - x_F / x_P)), and is split evenly between the effects; in a
+   parallel-fed cascade it falls from effect to effect as each share of the
+   feed first takes its sensible heat, and the temperature span is then
+   shared in proportion to duty / U (equal areas).
 2. The temperature span between the live steam and the coldest effect (set
    by its fixed pressure, or the cooling water plus 15 K, or 50 °C) is split
    evenly by the effects' position in the vapour cascade: an effect whose
    vapour heats k further effects boils k steps above the coldest one.
 3. Each unit then estimates its outlets from its inlets (its ``guess``
    method), in flow order from the sources, in three passes so that recycles
-   settle. Fixed values and the user's guesses are never overwritten.
+   settle. Between passes, what a unit asks of an inlet (an effect's heating
+   steam, the liquor that concentrates to its known solids) goes upstream; a
+   splitter sets its fractions in proportion to its outlets' demands.
+   Fixed values and the user's guesses are never overwritten.
 """
 
 from __future__ import annotations
@@ -88,6 +94,8 @@ def initial_guess(model) -> dict[str, float]:
             locked.add(v.path)
 
     streams = fs.streams
+    port_stream = {(s.target, s.target_port): s for s in streams}   # a port's stream, looked up in O(1)
+    port_stream.update({(s.source, s.source_port): s for s in streams})
     feeds = [s for s in streams if fs.unit(s.source).type_name == "feed"]
     x_feed = np.mean([values.get(f"{s.name}.solids", 0.1) for s in feeds]) if feeds else 0.1
     products = [s for s in streams if s.kind == "liquor" and (
@@ -158,6 +166,67 @@ def initial_guess(model) -> dict[str, float]:
     weights = [np.mean(resistance.get(lvl, [1.0 / 1500.0])) for lvl in range(1, n_levels + 1)]
     shares = np.array(weights) / max(sum(weights), 1e-30) * (t_top - t_cold)
     level_temperature = {lvl: t_cold + float(np.sum(shares[:lvl - 1])) for lvl in range(1, n_levels + 1)}
+    # parallel feed: an effect fed from a feed through splitters only, whose concentrate reaches the
+    # product through mixers only, concentrates its share to the product's solids
+    def _through(name: str, port: str, upstream: bool):
+        s = port_stream.get((name, port))
+        while s is not None:
+            other = fs.unit(s.source if upstream else s.target)
+            junction = "splitter" if upstream else "mixer"
+            if other.type_name != junction or other.setting("stream") != "liquor":
+                return s
+            s = port_stream.get((other.name, "in" if upstream else "out"))
+        return None
+
+    parallel: dict[str, float] = {}   # effect -> temperature of the liquor it receives
+    for name in effects:
+        s_in, s_out = _through(name, "liquor_in", True), _through(name, "liquor_out", False)
+        if (s_in is None or s_out is None or fs.unit(s_in.source).type_name != "feed"
+                or s_in.target == name or s_out.source == name or s_out not in products):
+            continue
+        parallel[name] = values.get(f"{s_in.name}.temperature", 0.5 * (t_top + t_cold))
+    # evaporation shaped along a simple parallel-fed cascade: each effect's heat is the vapour of
+    # the effect above (or the live steam); its own share of the feed takes first its sensible heat,
+    # E_i = H_i / (latent_i + r c_p (T_i - T_feed)), r = x_P / (x_P - x_F), then H_next = E_i latent_i
+    evaporation_of = {name: evaporation / n_effects for name in effects}
+    heated_by: dict[str, str | None] = {}
+    for name in effects:
+        s = port_stream.get((name, "heating_in"))
+        src = fs.unit(s.source) if s is not None else None
+        if src is not None and src.type_name == "steam_supply":
+            heated_by[name] = None
+        elif src is not None and src.name in effects and s.source_port == "vapour_out":
+            heated_by[name] = src.name
+    if len(effects) > 1 and set(parallel) == set(effects) == set(heated_by) \
+            and len(set(heated_by.values())) == len(effects):
+        ratio = x_product / (x_product - x_feed)
+        cp_rough = 4186.0 * (1.0 - 0.6 * x_feed)   # rough liquor heat capacity [J/(kg K)], for the guess only
+        below = {v: k for k, v in heated_by.items()}
+        u_of = {k: values[f"{k}.U"] if f"{k}.U" in locked else 1500.0 for k in effects}
+        for _ in range(30):   # the temperatures and the duties settle together
+            heat, raw = 1.0e6, {}
+            name = below.get(None)
+            while name is not None and name not in raw:
+                t_b = level_temperature[levels[name]]
+                latent = float(water.latent_heat(t_b))
+                raw[name] = heat / max(latent + ratio * cp_rough * (t_b - parallel[name]), 0.2 * latent)
+                heat = raw[name] * latent
+                name = below.get(name)
+            if len(raw) != len(effects) or len(set(levels[k] for k in raw)) != len(raw):
+                break
+            total = sum(raw.values())
+            evaporation_of = {k: evaporation * v / total for k, v in raw.items()}
+            # the span shared in proportion to Q/U, as equal areas would share it
+            weights = [0.0] * n_levels
+            for k in raw:
+                weights[levels[k] - 1] = raw[k] / u_of[k]
+            shares = np.array(weights) / max(sum(weights), 1e-30) * (t_top - t_cold)
+            settled = {lvl: 0.5 * level_temperature[lvl] + 0.5 * (t_cold + float(np.sum(shares[:lvl - 1])))
+                       for lvl in range(1, n_levels + 1)}   # half steps: full ones oscillate on long trains
+            moved = max(abs(settled[lvl] - level_temperature[lvl]) for lvl in settled)
+            level_temperature = settled
+            if moved < 0.01:
+                break
     hints_by_unit: dict[str, dict[str, Any]] = {}
     for name, unit in fs.units.items():
         hints: dict[str, Any] = {"fixed": {}, "steam_flow": evaporation / n_effects / 0.95,
@@ -172,7 +241,9 @@ def initial_guess(model) -> dict[str, float]:
                 t_b = float(water.saturation_temperature(hints["fixed"]["pressure"]))
             hints["boiling_temperature"] = t_b
         if name in effects:
-            hints["evaporation"] = evaporation / n_effects
+            hints["evaporation"] = evaporation_of[name]
+        if name in parallel:
+            hints["product_solids"] = x_product
         # fixed stream values at the unit's own ports: port -> {variable: value}
         hints["fixed_ports"] = {}
         for s in streams:
@@ -206,7 +277,7 @@ def initial_guess(model) -> dict[str, float]:
 
     def record_demands(name: str, guess) -> None:
         for port, var_values in guess.inlets.items():
-            stream = fs.stream_at(name, port)
+            stream = port_stream.get((name, port))
             if stream is not None and fs.unit(stream.source).boundary != "source":
                 hints_by_unit[stream.source].setdefault("demand", {})[stream.source_port] = dict(var_values)
 
@@ -222,7 +293,7 @@ def initial_guess(model) -> dict[str, float]:
             except (KeyError, ZeroDivisionError, ValueError, TypeError):
                 continue
             for port, var_values in guess.streams.items():
-                stream = fs.stream_at(name, port)
+                stream = port_stream.get((name, port))
                 if stream is None:
                     continue
                 for var, val in var_values.items():
@@ -233,7 +304,7 @@ def initial_guess(model) -> dict[str, float]:
             for q, val in guess.quantities.items():
                 put(f"{name}.{q}", val)
             for port, var_values in guess.inlets.items():
-                stream = fs.stream_at(name, port)
+                stream = port_stream.get((name, port))
                 if stream is None or fs.unit(stream.source).boundary != "source":
                     continue
                 for var, val in var_values.items():
@@ -260,7 +331,7 @@ def initial_guess(model) -> dict[str, float]:
                     if len(ins) == 1 and asked and None not in asked:
                         guess.inlets[ins[0]] = {"flow": sum(asked)}
             for port, var_values in guess.inlets.items():
-                stream = fs.stream_at(name, port)
+                stream = port_stream.get((name, port))
                 if stream is not None and fs.unit(stream.source).boundary == "source":
                     for var, val in var_values.items():
                         put(f"{stream.name}.{var}", val)

@@ -122,6 +122,12 @@ class Effect(UnitOperation):
             u = duty / (area * max(t_cond - t_boil, 2.0))
         h_heat = float(water.vapour_enthalpy(heat["temperature"], heat["pressure"]))
         heating_flow = duty / (h_heat - float(water.liquid_enthalpy(t_cond)))
+        wanted = {"heating_in": {"flow": heating_flow}}
+        # an effect whose concentrate solids are known (fixed, or the product's in parallel feed)
+        # asks for the liquor that its evaporation concentrates to them: F = E x_out / (x_out - x_in)
+        x_target = hints.get("fixed_ports", {}).get("liquor_out", {}).get("solids", hints.get("product_solids"))
+        if x_target is not None and x_target > liq["solids"] + 1e-6 and "evaporation" in hints:
+            wanted["liquor_in"] = {"flow": hints["evaporation"] * x_target / (x_target - liq["solids"])}
         return Guess(
             streams={
                 "liquor_out": {"flow": out_flow, "solids": solids, "temperature": t_boil},
@@ -129,5 +135,5 @@ class Effect(UnitOperation):
                 "condensate_out": {"flow": heat.get("flow", heating_flow), "temperature": t_cond},
             },
             quantities={"duty": duty, "area": area, "U": u, "pressure": p},
-            inlets={"heating_in": {"flow": heating_flow}},
+            inlets=wanted,
         )

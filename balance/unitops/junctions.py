@@ -95,6 +95,15 @@ class Splitter(UnitOperation):
         n = int(self.setting("outlets"))
         fixed = hints.get("fixed", {})
         fractions = [fixed.get(f"fraction_{i}", 1.0 / n) for i in range(1, n)]
+        # what the outlets' units ask for: the free fractions follow the demands, the sum goes upstream
+        demand = hints.get("demand", {})
+        asked = [demand.get(f"out{i}", {}).get("flow") for i in range(1, n + 1)]
+        inlets = {}
+        if None not in asked and sum(asked) > 0.0:
+            inlets["in"] = {"flow": sum(asked)}
+            if not any(f"fraction_{i}" in fixed for i in range(1, n)):
+                fractions = [a / sum(asked) for a in asked[:-1]]
         fractions.append(max(1.0 - sum(fractions), 0.0))
         streams = {f"out{i}": dict(feed, flow=feed["flow"] * f) for i, f in enumerate(fractions, start=1)}
-        return Guess(streams=streams, quantities={f"fraction_{i}": f for i, f in enumerate(fractions[:-1], 1)})
+        return Guess(streams=streams, quantities={f"fraction_{i}": f for i, f in enumerate(fractions[:-1], 1)},
+                     inlets=inlets)

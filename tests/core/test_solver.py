@@ -117,3 +117,15 @@ def test_a_warm_start_from_a_neighbour_takes_few_iterations():
     assert neighbour.iterations <= 6
     cold = rating.solve()
     assert neighbour.value("steam.flow") == pytest.approx(cold.value("steam.flow"), rel=1e-9)
+
+
+def test_a_64_effect_parallel_feed_train_converges_from_the_automatic_guess():
+    # The guess shapes evaporation down a parallel-feed chain and asks splitters for the flows the
+    # effects need; before that, 64 effects left Newton stranded and only IPOPT (3 s) found the root.
+    from balance.analysis.benchmark import train_flowsheet
+    solution = Solver(train_flowsheet(64)).solve()
+    assert solution.converged and solution.method == "newton"
+    assert solution.iterations <= 8
+    # every effect shares the same concentrate solids and the same area (the specification)
+    areas = [solution.value(f"E{i}.area") for i in range(1, 65)]
+    assert max(areas) == pytest.approx(min(areas), rel=1e-9)
