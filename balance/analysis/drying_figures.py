@@ -92,7 +92,7 @@ def drying_figures(solution) -> list[KeyFigure]:
         ideal += units[n].figures["evaporation"] * float(water.latent_heat(max(t_as, 273.16)))
 
     # the evaporation figures already leave out the steam that air heaters and dryers take
-    steam_heat_evaporator = base["live_steam_heat"]
+    steam_heat_evaporator = base.get("live_steam_heat", 0.0)
     electrical = sum(u.quantities.get("electrical_power", 0.0) for u in units.values())
 
     if has_evaporators:

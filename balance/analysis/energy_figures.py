@@ -42,8 +42,8 @@ from dataclasses import dataclass, field
 import casadi as ca
 
 from balance import quantities
-from balance.analysis.key_figures import (KeyFigure, ScalarFunction, evaporation_figures, provides_figures,
-                                         structure_cache)
+from balance.analysis.key_figures import (KeyFigure, ScalarFunction, condensing_enthalpy, evaporation_figures,
+                                         provides_figures, structure_cache)
 from balance.errors import InputError, UnitOfMeasureError
 from balance.properties import water
 
@@ -318,7 +318,15 @@ def energy_figures(solution) -> list[KeyFigure]:
         ]
     if fuel > 0:
         figures.append(KeyFigure("fuel_power", "fuel burnt (LHV)", fuel, "power"))
-    figures += _economic_figures(solution, economics_of(fs), base, electrical, fuel, water_t, product_t)
+    # the cost of steam covers every steam supply: the evaporators' and the air heaters' and dryers'
+    steam_total = steam_heat_total = 0.0
+    for stream in solution.streams.values():
+        if fs.unit(stream.source).type_name == "steam_supply":
+            steam_total += stream.values["flow"]
+            steam_heat_total += stream.values["flow"] * (stream.specific_enthalpy
+                                                         - condensing_enthalpy(stream.values["pressure"]))
+    all_steam = dict(base, live_steam=steam_total, live_steam_heat=steam_heat_total)
+    figures += _economic_figures(solution, economics_of(fs), all_steam, electrical, fuel, water_t, product_t)
     return figures
 
 
@@ -342,8 +350,8 @@ def fuel_power(solution) -> float:
 def _economic_figures(solution, econ: Economics, base: dict, electrical: float, fuel: float, water_t: float,
                       product_t: float) -> list[KeyFigure]:
     """Primary energy, operating cost and CO2: each group only when its factors are all given."""
-    uses = {"steam_heat": base["live_steam_heat"], "steam": base["live_steam"],
-            "electricity": electrical, "cooling_water": base["cooling_water"], "fuel": fuel}
+    uses = {"steam_heat": base.get("live_steam_heat", 0.0), "steam": base.get("live_steam", 0.0),
+            "electricity": electrical, "cooling_water": base.get("cooling_water", 0.0), "fuel": fuel}
     # key -> (use when the factor is per energy, use when per mass)
     applies = {
         "steam_primary_energy_factor": ("steam_heat", "steam_heat"),

@@ -257,6 +257,16 @@ def evaporation_figures(solution) -> list[KeyFigure]:
         KeyFigure("product_solids", "product solids",
                   product_solids / product_flow if product_flow else 0.0, "fraction"),
         KeyFigure("water_evaporated", "water evaporated", evaporated, "mass_flow"),
+    ]
+    types = {u.type_name for u in units.values()}
+    has_effects = bool(types & {"effect", "flash_tank"})
+    if not (has_effects or steam):
+        # a line without evaporators or live steam to them: no economy to speak of
+        figures += _equipment_figures(units, types, cooling, evaporated)
+        if current:
+            memo["evaporation"] = tuple(figures)
+        return figures
+    figures += [
         KeyFigure("live_steam", prefix + "live steam", steam, "mass_flow"),
         KeyFigure("steam_economy", prefix + "steam economy (kg water / kg live steam)",
                   by_steam / steam if steam > 0 else float("nan"), "ratio"),
@@ -266,6 +276,14 @@ def evaporation_figures(solution) -> list[KeyFigure]:
         KeyFigure("heat_per_water", prefix + "live-steam heat per kg water",
                   steam_heat / by_steam if by_steam > 0 else float("nan"), "specific_enthalpy"),
     ]
+    figures += _equipment_figures(units, types, cooling, evaporated)
+    if current:
+        memo["evaporation"] = tuple(figures)
+    return figures
+
+
+def _equipment_figures(units, types, cooling, evaporated) -> list[KeyFigure]:
+    """Areas, condenser duty and cooling water, for the equipment the flowsheet has."""
     area = {"effect": 0.0, "preheater": 0.0, "condenser": 0.0}
     condenser_duty = 0.0
     for u in units.values():
@@ -273,15 +291,18 @@ def evaporation_figures(solution) -> list[KeyFigure]:
             area[u.type_name] += u.quantities["area"]
         if u.type_name in ("condenser", "direct_contact_condenser"):
             condenser_duty += u.quantities.get("duty", 0.0)
-    figures += [
-        KeyFigure("heating_area", "heating area of the effects", area["effect"], "area"),
-        KeyFigure("preheater_area", "preheater area", area["preheater"], "area"),
-        KeyFigure("condenser_area", "condenser area", area["condenser"], "area"),
-        KeyFigure("condenser_duty", "condenser duty", condenser_duty, "power"),
-        KeyFigure("cooling_water", "cooling water", cooling, "mass_flow"),
-        KeyFigure("cooling_water_per_water", "cooling water per kg water evaporated",
-                  cooling / evaporated if evaporated > 0 else float("nan"), "ratio"),
-    ]
-    if current:
-        memo["evaporation"] = tuple(figures)
+    figures = []
+    if "effect" in types:
+        figures.append(KeyFigure("heating_area", "heating area of the effects", area["effect"], "area"))
+    if "preheater" in types:
+        figures.append(KeyFigure("preheater_area", "preheater area", area["preheater"], "area"))
+    if "condenser" in types:
+        figures.append(KeyFigure("condenser_area", "condenser area", area["condenser"], "area"))
+    if types & {"condenser", "direct_contact_condenser"} or cooling:
+        figures += [
+            KeyFigure("condenser_duty", "condenser duty", condenser_duty, "power"),
+            KeyFigure("cooling_water", "cooling water", cooling, "mass_flow"),
+            KeyFigure("cooling_water_per_water", "cooling water per kg water evaporated",
+                      cooling / evaporated if evaporated > 0 else float("nan"), "ratio"),
+        ]
     return figures
