@@ -179,6 +179,31 @@ def convert(value_si: float, kind: str, to_unit: str | None = None) -> float:
     return float(UREG.Quantity(value_si, spec.si or "dimensionless").to(target).magnitude)
 
 
+def format_number(value: float | None) -> str:
+    """A number as tables show it: about four significant figures, thousands
+    separated, no exponent for the sizes a plant has.
+
+    >>> [format_number(v) for v in (1562303.4, 137.07, 11.764, 0.186, 0.00042, None, float("nan"))]
+    ['1,562,303', '137.1', '11.76', '0.186', '0.00042', '-', 'n/a']
+    """
+    if value is None:
+        return "-"
+    if not math.isfinite(value):
+        return "n/a"
+    magnitude = abs(value)
+    if magnitude >= 1e12:
+        return f"{value:.3e}"
+    if magnitude >= 1000:
+        return f"{value:,.0f}"
+    if magnitude >= 100:
+        return f"{value:.1f}"
+    if magnitude >= 10:
+        return f"{value:.2f}"
+    if magnitude >= 0.01 or magnitude == 0:
+        return f"{value:.3f}"
+    return f"{value:.3g}"
+
+
 def display_unit(kind: str) -> str:
     """The unit a kind is shown in, written as people write it.
 

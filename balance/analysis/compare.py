@@ -47,15 +47,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable
 
-try:
-    import tomllib
-except ModuleNotFoundError:  # Python < 3.11
-    import tomli as tomllib
-
 from balance.analysis.key_figures import key_figures
 from balance.errors import BalanceError, InputError
-from balance.flowsheet.file_format import from_dict
-from balance.quantities import convert, display_unit
+from balance.flowsheet.file_format import from_dict, read_toml
+from balance.quantities import convert, display_unit, format_number
 
 LAYOUT_VERSION = "balance-comparison/1"
 
@@ -97,15 +92,7 @@ class Variant:
 
 
 def _read(path: str) -> dict:
-    try:
-        with open(path, "rb") as handle:
-            return tomllib.load(handle)
-    except FileNotFoundError:
-        raise InputError("file not found", file=path) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"not valid TOML: {exc}", file=path) from None
-    except OSError as exc:
-        raise InputError(f"cannot read the file: {exc.strerror}", file=path) from None
+    return read_toml(path)
 
 
 def _ends(text: str) -> list[tuple[str, str]]:
@@ -625,16 +612,7 @@ class Comparison:
 
 
 def _number(value: float | None) -> str:
-    if value is None:
-        return "-"
-    magnitude = abs(value)
-    if magnitude >= 1000:
-        return f"{value:,.0f}"
-    if magnitude >= 100:
-        return f"{value:.1f}"
-    if magnitude >= 10:
-        return f"{value:.2f}"
-    return f"{value:.3f}"
+    return format_number(value)
 
 
 def _csv(value: float | None) -> str:

@@ -63,6 +63,7 @@ import casadi as ca
 import numpy as np
 
 from balance import quantities
+from balance.quantities import format_number
 from balance.equations.model import Model, compile_flowsheet, resolve_path
 from balance.errors import InputError, SolveError, SpecificationError
 from balance.flowsheet.graph import Flowsheet
@@ -562,19 +563,8 @@ def _show(value: float, kind: str | None, currency: str = "") -> str:
     return f"{_number(shown)} {quantities.display_unit(kind)}".rstrip()
 
 
-def _number(value: float) -> str:
-    magnitude = abs(value)
-    if not math.isfinite(value):
-        return "n/a"
-    if magnitude >= 1000:
-        return f"{value:,.0f}"
-    if magnitude >= 100:
-        return f"{value:.1f}"
-    if magnitude >= 10:
-        return f"{value:.2f}"
-    if magnitude >= 0.01 or magnitude == 0:
-        return f"{value:.3f}"
-    return f"{value:.3g}"
+def _number(value: float | None) -> str:
+    return format_number(value)
 
 
 # ---------------------------------------------------------------------------------------------

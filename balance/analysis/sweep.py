@@ -1486,19 +1486,9 @@ class SweepSpec:
 
 def load_sweep(path: str | os.PathLike) -> SweepSpec:
     """Read a sweep file (see the module docstring)."""
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # Python < 3.11
-        import tomli as tomllib
+    from balance.flowsheet.file_format import read_toml
     file = str(path)
-    try:
-        with open(file, "rb") as handle:
-            data = tomllib.load(handle)
-    except FileNotFoundError:
-        raise InputError("file not found", file=file) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"not valid TOML: {exc}", file=file) from None
-    return sweep_from_dict(data, file)
+    return sweep_from_dict(read_toml(file), file)
 
 
 def is_sweep_file(path: str | os.PathLike) -> bool:

@@ -60,16 +60,21 @@ def load(path: str | os.PathLike) -> Flowsheet:
         With the file, unit and key, for anything malformed.
     """
     file = str(path)
+    return from_dict(read_toml(file), file=file)
+
+
+def read_toml(path: str | os.PathLike) -> dict:
+    """Parse a TOML file; every failure is an `InputError` naming the file."""
+    file = str(path)
     try:
         with open(file, "rb") as handle:
-            data = tomllib.load(handle)
+            return tomllib.load(handle)
     except FileNotFoundError:
         raise InputError("file not found", file=file) from None
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"not valid TOML: {exc}", file=file) from None
     except OSError as exc:
         raise InputError(f"cannot read the file: {exc.strerror}", file=file) from None
-    return from_dict(data, file=file)
 
 
 def from_dict(data: dict, file: str | None = None) -> Flowsheet:

@@ -6,7 +6,7 @@ import math
 
 from balance.analysis.key_figures import key_figures
 from balance.flowsheet.graph import IMPLICIT_OUTLET_PREFIX
-from balance.quantities import convert, display_unit
+from balance.quantities import convert, display_unit, format_number
 from balance.report.cautions import cautions_for
 
 STREAM_COLUMNS = (("flow", "mass_flow"), ("solids", "fraction"), ("temperature", "temperature"),
@@ -19,23 +19,10 @@ UNIT_COLUMNS = (("duty", "power"), ("area", "area"), ("U", "heat_transfer_coeffi
 
 
 def fmt(value: float | None, kind: str | None = None) -> str:
-    """Format a number for a table: about four significant figures, no exponent for usual sizes."""
-    if value is None:
-        return "-"
-    if kind:
+    """Format a number for a table, converted to the kind's display unit first."""
+    if value is not None and kind:
         value = convert(value, kind)
-    if not math.isfinite(value):
-        return "n/a"
-    magnitude = abs(value)
-    if magnitude >= 1e6 or (0 < magnitude < 1e-3):
-        return f"{value:.3e}"
-    if magnitude >= 1000:
-        return f"{value:,.0f}"
-    if magnitude >= 100:
-        return f"{value:.1f}"
-    if magnitude >= 10:
-        return f"{value:.2f}"
-    return f"{value:.3f}"
+    return format_number(value)
 
 
 def _table(header: list[str], rows: list[list[str]]) -> str:
