@@ -41,7 +41,6 @@ from __future__ import annotations
 
 import pytest
 
-from balance.errors import InputError
 from balance.flowsheet import Flowsheet
 from balance.properties import water
 from balance.properties.liquors import builtin_liquor, liquor_from_table

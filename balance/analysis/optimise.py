@@ -52,7 +52,6 @@ and on the plant totals in `AGGREGATES` (``live_steam``, ``feed``,
 from __future__ import annotations
 
 import ast
-import math
 import re
 import time
 from contextlib import contextmanager

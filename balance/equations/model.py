@@ -16,7 +16,7 @@ import casadi as ca
 import numpy as np
 
 from balance.errors import InputError, SpecificationError
-from balance.flowsheet.graph import IMPLICIT_OUTLET_PREFIX, Flowsheet
+from balance.flowsheet.graph import Flowsheet
 from balance.unitops.streams import STREAM_KINDS, StreamState
 
 #: Residual scale per equation kind, as multiples of the reference flow

@@ -23,7 +23,7 @@ from typing import Any
 import networkx as nx
 
 from balance.errors import InputError, PortError
-from balance.unitops import UnitOperation, unit_type
+from balance.unitops import UnitOperation
 from balance.unitops.boundaries import Outlet
 from balance.unitops.streams import STREAM_KINDS
 

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 
 from balance.analysis.key_figures import key_figures
 from balance.flowsheet.graph import IMPLICIT_OUTLET_PREFIX

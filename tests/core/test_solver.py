@@ -2,13 +2,12 @@
 
 import json
 
-import numpy as np
 import pytest
 
 from balance.errors import InputError, SolveError
 from balance.flowsheet.file_format import load
 from balance.report.json_layout import to_json
-from balance.solve import Solver, solve
+from balance.solve import Solver
 
 DEMO = "flowsheets/skim_milk_3_effect_forward.toml"
 
