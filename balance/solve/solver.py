@@ -81,7 +81,7 @@ class Solver:
         if method in ("auto", "newton"):
             raw = newton(self.system, x0, self.p)
             attempts.append(f"newton: {raw.message} ({raw.iterations} iterations, residual {raw.residual_norm:.1e})")
-            if raw.converged and method == "auto" and check_values(self.model, self._figures(raw.x)):
+            if raw.converged and method == "auto" and self._problems(raw.x):
                 attempts.append("newton: the root found is not physical; retrying within bounds")
                 raw = RawSolution(raw.x, False, "newton", raw.iterations, raw.residual_norm, raw.seconds,
                                   "unphysical root")
@@ -99,19 +99,30 @@ class Solver:
                     bounded = polished
             if raw is None or bounded.residual_norm < raw.residual_norm or bounded.converged:
                 raw = bounded
-        if method == "auto" and (not raw.converged or check_values(self.model, self._figures(raw.x))):
+        if method == "auto" and (not raw.converged or self._problems(raw.x)):
             # continuation from an easier problem (balance/solve/continuation.py) before giving up
             from balance.solve.continuation import continuation_solve
             rescued = continuation_solve(self.system, x0, self.p, guess=lambda _p: self.guess())
             attempts += rescued.attempts
-            if rescued.converged and not check_values(self.model, self._figures(rescued.raw.x)):
+            if rescued.converged and not self._problems(rescued.raw.x):
                 raw = rescued.raw
             elif rescued.raw is not None and not raw.converged and rescued.raw.residual_norm < raw.residual_norm:
                 raw = rescued.raw
         return self._result(raw, attempts, range_policy)
 
     def _figures(self, x: np.ndarray) -> dict:
-        return self.evaluator.evaluate(x, self.p)
+        """Every figure at ``x`` (remembered for the last point: the checks and the result share it)."""
+        key = (np.asarray(x, dtype=float).tobytes(), self.p.tobytes())
+        if getattr(self, "_last_figures", (None,))[0] != key:
+            self._last_figures = (key, self.evaluator.evaluate(x, self.p))
+        return self._last_figures[1]
+
+    def _problems(self, x: np.ndarray) -> list[str]:
+        """`check_values` at ``x``, remembered for the last point."""
+        figures = self._figures(x)
+        if getattr(self, "_last_problems", (None,))[0] is not figures:
+            self._last_problems = (figures, check_values(self.model, figures))
+        return self._last_problems[1]
 
     def _result(self, raw: RawSolution, attempts: list[str], range_policy: str) -> Solution:
         model = self.model
@@ -121,7 +132,7 @@ class Solver:
         if raw.residual_norm > RESIDUAL_LIMIT or not np.isfinite(raw.residual_norm):
             if raw.converged:
                 problems.append(f"residual {raw.residual_norm:.2e} above {RESIDUAL_LIMIT:g}")
-        problems += check_values(model, figures)
+        problems += list(self._problems(raw.x))
         problems += unit_problems(model, figures)
         balances = overall_balances(model, figures)
         for balance in balances.values():
