@@ -52,6 +52,7 @@ def to_dict(solution) -> dict:
             "residual_norm": solution.residual_norm if math.isfinite(solution.residual_norm) else None,
             "seconds": solution.seconds, "message": solution.message, "warnings": list(solution.warnings),
             "problems": list(solution.problems), "attempts": list(solution.attempts),
+            "diagnosis": list(solution.diagnosis),
             "worst_equations": [{"equation": label, "scaled_residual": value}
                                 for label, value in solution.worst_equations],
         },

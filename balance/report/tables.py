@@ -86,8 +86,11 @@ def solve_record(solution) -> str:
     for p in solution.problems:
         lines.append(f"  PROBLEM: {p}")
     if not solution.converged:
-        for label, value in solution.worst_equations:
-            lines.append(f"  residual {value:+.2e}  {label}")
+        if not solution.diagnosis:
+            for label, value in solution.worst_equations:
+                lines.append(f"  residual {value:+.2e}  {label}")
+        for line in solution.diagnosis:
+            lines.append(f"  {line}")
         for attempt in solution.attempts:
             lines.append(f"  tried {attempt}")
     return "\n".join(lines)

@@ -85,6 +85,11 @@ class Solution:
         The largest scaled residuals with their labels.
     values : dict
         Every variable path -> value (SI).
+    attempts : list of str
+        The methods tried, in order, with how each ended.
+    diagnosis : list of str
+        For a failed solve: largest residuals by unit, values pressed against
+        their bounds, and likely causes in plant words.
     """
 
     model: Any
@@ -104,6 +109,7 @@ class Solution:
     values: dict[str, float]
     x: Any = None
     attempts: list[str] = field(default_factory=list)
+    diagnosis: list[str] = field(default_factory=list)
 
     @property
     def flowsheet(self):

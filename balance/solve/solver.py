@@ -7,13 +7,14 @@ import time
 import numpy as np
 
 from balance.equations.model import Model, compile_flowsheet
+from balance.equations.diagnostics import describe_failure
 from balance.equations.structure import analyse, describe_imbalance
 from balance.errors import InputError, SpecificationError
 from balance.flowsheet.graph import Flowsheet
 from balance.solve.checks import (RESIDUAL_LIMIT, check_values, overall_balances, range_warnings,
                                   unit_problems, worst_equations)
 from balance.solve.evaluate import Evaluator
-from balance.solve.feasibility import raise_if_infeasible
+from balance.solve.feasibility import precheck, raise_if_infeasible
 from balance.solve.guess import initial_guess
 from balance.solve.newton import CompiledSystem, RawSolution, bounded_feasibility, newton
 from balance.solve.result import Solution, StreamResult, UnitResult
@@ -167,10 +168,18 @@ class Solver:
                                      {k: figures[("unit", name, k)] for k in model.reports[name]}, kinds, fixed)
         converged = raw.converged and not problems
         status = "converged" if converged else ("checks failed" if raw.converged else "not converged")
+        diagnosis = []
+        if not converged:
+            # values changed by `set` since the build may ask the impossible: say so first
+            diagnosis = [f"likely cause: {m}" for m in precheck(model, self.p)]
+            try:
+                diagnosis += describe_failure(model, raw.x, self.p).text.splitlines()
+            except Exception as exc:  # noqa: BLE001 - a diagnosis must never hide the failure itself
+                diagnosis.append(f"no diagnosis ({type(exc).__name__})")
         return Solution(model, converged, status, raw.method, raw.iterations, raw.residual_norm, raw.seconds,
                         raw.message, streams, units, balances, warnings, problems,
                         worst_equations(model, figures), {v.path: figures[("var", v.path)] for v in model.variables},
-                        x=raw.x, attempts=attempts)
+                        x=raw.x, attempts=attempts, diagnosis=diagnosis)
 
 
 def solve(flowsheet: Flowsheet | Model, method: str = "auto", range_policy: str = "warn") -> Solution:

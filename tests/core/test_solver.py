@@ -74,6 +74,10 @@ def test_a_failed_solve_is_never_mistaken_for_an_answer(solver, base):
     assert failed.problems
     with pytest.raises(SolveError):
         failed.raise_if_failed()
+    # the failure is explained in plant words: residuals by unit and a likely cause
+    assert any(line.startswith("largest residuals: ") for line in failed.diagnosis)
+    assert any(line.startswith("likely cause: ") for line in failed.diagnosis)
+    assert "likely cause: " in to_json(failed)
 
 
 def test_overall_balances_close(base):
