@@ -141,6 +141,17 @@ class _AirHeater(UnitOperation):
     def _duty(self, a, t_out):
         return a["flow"] * (ds.air_enthalpy(t_out, a["humidity"]) - ds.air_enthalpy(a["temperature"], a["humidity"]))
 
+    def _heated_air_guess(self, inlets, hints, default_efficiency):
+        """Air out, duty, efficiency and the upstream air demand of a heater whose air passes unchanged."""
+        a = dict(inlets["air_in"])
+        demand = _pass_demand(hints)
+        a["flow"] = demand.get("air_in", {}).get("flow", a["flow"])
+        t_out = self._outlet_guess(a, hints)
+        duty = self._duty(a, t_out)
+        eta = hints.get("fixed", {}).get("efficiency", default_efficiency)
+        air_out = {"flow": a["flow"], "humidity": a["humidity"], "temperature": t_out}
+        return air_out, duty, eta, demand
+
 
 @register
 class SteamAirHeater(_AirHeater):
@@ -272,13 +283,8 @@ class IndirectFiredAirHeater(_AirHeater, _FuelSetting):
         return ctx.quantity("duty")
 
     def guess(self, inlets, hints):
-        a = dict(inlets["air_in"])
-        demand = _pass_demand(hints)
-        a["flow"] = demand.get("air_in", {}).get("flow", a["flow"])
-        t_out = self._outlet_guess(a, hints)
-        duty = self._duty(a, t_out)
-        eta = hints.get("fixed", {}).get("efficiency", 0.85)
-        return Guess(streams={"air_out": {"flow": a["flow"], "humidity": a["humidity"], "temperature": t_out}},
+        air_out, duty, eta, demand = self._heated_air_guess(inlets, hints, default_efficiency=0.85)
+        return Guess(streams={"air_out": air_out},
                      quantities={"duty": duty, "fuel_power": duty / eta, "efficiency": eta,
                                  "fuel_flow": duty / eta / self.heating_value},
                      inlets=demand)
@@ -380,13 +386,8 @@ class ElectricAirHeater(_AirHeater):
         return ctx.quantity("duty")
 
     def guess(self, inlets, hints):
-        a = dict(inlets["air_in"])
-        demand = _pass_demand(hints)
-        a["flow"] = demand.get("air_in", {}).get("flow", a["flow"])
-        t_out = self._outlet_guess(a, hints)
-        duty = self._duty(a, t_out)
-        eta = hints.get("fixed", {}).get("efficiency", 0.98)
-        return Guess(streams={"air_out": {"flow": a["flow"], "humidity": a["humidity"], "temperature": t_out}},
+        air_out, duty, eta, demand = self._heated_air_guess(inlets, hints, default_efficiency=0.98)
+        return Guess(streams={"air_out": air_out},
                      quantities={"duty": duty, "electrical_power": duty / eta, "efficiency": eta}, inlets=demand)
 
 
